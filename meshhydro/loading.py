@@ -1,0 +1,229 @@
+"""Loading conditions and case files (TOML, read with the standard library).
+
+A case file names the hull mesh (path relative to the case file) with its units and
+axis mapping, the water density, openings (points that let water in when immersed)
+and one or more loading conditions. A condition is either a displacement with a
+centre of gravity, or a list of mass items; an item may carry the free-surface
+moment ``fsm`` [t·m] of a slack tank (its ``i ρ_tank``), which raises G virtually by
+FSM / Δ (textbook virtual rise of G).
+
+Example::
+
+    [hull]
+    mesh = "../brindle_barge.stl"   # relative to this file
+    units = "m"                     # m, mm, cm, ft, in
+    forward = "+x"                  # file axis pointing forward
+    up = "+z"                       # file axis pointing up
+    offset = [0.0, 0.0, 0.0]        # added after scaling [m]
+
+    [water]
+    density = 1.025                 # t/m³
+
+    [[opening]]
+    name = "deckhouse door sill"
+    at = [2.0, -1.2, 2.3]           # hull frame [m]
+
+    [[condition]]
+    name = "loaded"
+    items = [ { name = "lightship", mass = 18.0, at = [5.9, 0.0, 0.85] },
+              { name = "fuel (slack)", mass = 2.0, at = [1.2, 0.0, 0.6], fsm = 0.9 } ]
+
+    [[condition]]
+    name = "light"
+    displacement = 20.0             # t
+    cog = [5.9, 0.0, 0.95]          # LCG, TCG, VCG (KG) [m]
+"""
+from __future__ import annotations
+
+import math
+import os
+import tomllib
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from .errors import InputError
+from .frames import SEA_WATER
+
+
+@dataclass(frozen=True)
+class MassItem:
+    """A named mass [t] at ``at`` (3,) [m, hull frame], with free-surface moment ``fsm`` [t·m]."""
+
+    name: str
+    mass: float
+    at: tuple[float, float, float]
+    fsm: float = 0.0
+
+
+@dataclass(frozen=True)
+class Condition:
+    """A loading condition: displacement [t] and centre of gravity (3,) [m, hull frame].
+
+    ``fsm`` is the total free-surface moment [t·m]; ``kg_fluid`` = KG + FSM/Δ and
+    ``cog_fluid`` is G raised by that amount along the hull z axis.
+    """
+
+    name: str
+    displacement: float
+    cog: tuple[float, float, float]
+    fsm: float = 0.0
+    items: tuple[MassItem, ...] = ()
+
+    @property
+    def free_surface_rise(self) -> float:
+        return self.fsm / self.displacement
+
+    @property
+    def kg(self) -> float:
+        return self.cog[2]
+
+    @property
+    def kg_fluid(self) -> float:
+        return self.cog[2] + self.free_surface_rise
+
+    @property
+    def cog_fluid(self) -> np.ndarray:
+        return np.array([self.cog[0], self.cog[1], self.kg_fluid])
+
+    def to_dict(self) -> dict[str, Any]:
+        return {
+            "name": self.name, "displacement": self.displacement, "lcg": self.cog[0], "tcg": self.cog[1],
+            "vcg": self.cog[2], "fsm": self.fsm, "free_surface_rise": self.free_surface_rise,
+            "kg_fluid": self.kg_fluid,
+            "items": [{"name": i.name, "mass": i.mass, "x": i.at[0], "y": i.at[1], "z": i.at[2], "fsm": i.fsm}
+                      for i in self.items],
+        }
+
+
+def _num(v: Any, where: str, *, positive: bool = False, nonneg: bool = False) -> float:
+    if isinstance(v, bool) or not isinstance(v, (int, float)):
+        raise InputError(f"{where}: expected a number, got {v!r}")
+    f = float(v)
+    if not math.isfinite(f):
+        raise InputError(f"{where}: must be finite, got {v!r}")
+    if positive and f <= 0:
+        raise InputError(f"{where}: must be positive, got {v!r}")
+    if nonneg and f < 0:
+        raise InputError(f"{where}: must not be negative, got {v!r}")
+    return f
+
+
+def _vec(v: Any, where: str) -> tuple[float, float, float]:
+    if not isinstance(v, (list, tuple)) or len(v) != 3:
+        raise InputError(f"{where}: expected three numbers [x, y, z], got {v!r}")
+    a = [_num(x, where) for x in v]
+    return a[0], a[1], a[2]
+
+
+def condition_from_items(name: str, items: list[MassItem]) -> Condition:
+    """Sum mass items into a condition (moments about the hull-frame origin)."""
+    if not items:
+        raise InputError(f"condition {name!r}: no mass items")
+    m = sum(i.mass for i in items)
+    if m <= 0:
+        raise InputError(f"condition {name!r}: total mass must be positive, got {m}")
+    mom = np.sum([np.array(i.at) * i.mass for i in items], axis=0) / m
+    return Condition(name=name, displacement=float(m), cog=(float(mom[0]), float(mom[1]), float(mom[2])),
+                     fsm=float(sum(i.fsm for i in items)), items=tuple(items))
+
+
+def condition(displacement: float, cog: Any, *, name: str = "condition", fsm: float = 0.0) -> Condition:
+    """A condition from a displacement [t] and a centre of gravity (3,) [m]."""
+    d = _num(displacement, "displacement", positive=True)
+    c = _vec(list(np.asarray(cog, dtype=float).reshape(-1)) if not isinstance(cog, (list, tuple)) else cog, "cog")
+    return Condition(name=name, displacement=d, cog=c, fsm=_num(fsm, "fsm", nonneg=True))
+
+
+@dataclass(frozen=True)
+class Opening:
+    """A point [m, hull frame] through which water floods once it is immersed."""
+
+    name: str
+    at: tuple[float, float, float]
+
+
+@dataclass(frozen=True)
+class Case:
+    """A parsed case file."""
+
+    path: str
+    mesh: str
+    units: str = "m"
+    forward: str = "+x"
+    up: str = "+z"
+    offset: tuple[float, float, float] = (0.0, 0.0, 0.0)
+    density: float = SEA_WATER
+    openings: tuple[Opening, ...] = ()
+    conditions: tuple[Condition, ...] = field(default_factory=tuple)
+
+    def condition(self, name: str | None = None) -> Condition:
+        """The named condition, or the first one."""
+        if name is None:
+            return self.conditions[0]
+        for c in self.conditions:
+            if c.name == name:
+                return c
+        raise InputError(f"{self.path}: no condition named {name!r}; have {[c.name for c in self.conditions]}")
+
+    def load_hull(self):
+        from .hull import load_hull
+
+        return load_hull(self.mesh, units=self.units, forward=self.forward, up=self.up, offset=self.offset)
+
+
+def read_case(path: str) -> Case:
+    """Read and validate a case file; errors name the file and the key."""
+    if not os.path.exists(path):
+        raise InputError(f"{path}: no such file")
+    try:
+        with open(path, "rb") as fh:
+            data = tomllib.load(fh)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(f"{path}: not valid TOML ({exc})") from None
+    hull = data.get("hull")
+    if not isinstance(hull, dict) or "mesh" not in hull:
+        raise InputError(f"{path}: needs a [hull] table with mesh = \"file\"")
+    base = os.path.dirname(os.path.abspath(path))
+    mesh = os.path.normpath(os.path.join(base, str(hull["mesh"])))
+    known = {"mesh", "units", "forward", "up", "offset"}
+    extra = set(hull) - known
+    if extra:
+        raise InputError(f"{path}: [hull] has unknown keys {sorted(extra)}; known: {sorted(known)}")
+    water = data.get("water", {})
+    density = _num(water.get("density", SEA_WATER), f"{path}: [water] density", positive=True)
+    openings = []
+    for k, o in enumerate(data.get("opening", [])):
+        where = f"{path}: opening {k + 1}"
+        if "at" not in o:
+            raise InputError(f"{where}: needs at = [x, y, z]")
+        openings.append(Opening(str(o.get("name", f"opening {k + 1}")), _vec(o["at"], where + " at")))
+    conds = []
+    for k, c in enumerate(data.get("condition", [])):
+        name = str(c.get("name", f"condition {k + 1}"))
+        where = f"{path}: condition {name!r}"
+        if "items" in c:
+            items = []
+            for j, it in enumerate(c["items"]):
+                w = f"{where} item {j + 1}"
+                if "mass" not in it or "at" not in it:
+                    raise InputError(f"{w}: needs mass and at")
+                items.append(MassItem(str(it.get("name", f"item {j + 1}")), _num(it["mass"], w + " mass"),
+                                      _vec(it["at"], w + " at"), _num(it.get("fsm", 0.0), w + " fsm", nonneg=True)))
+            cond = condition_from_items(name, items)
+            if "fsm" in c:
+                cond = Condition(cond.name, cond.displacement, cond.cog,
+                                 cond.fsm + _num(c["fsm"], where + " fsm", nonneg=True), cond.items)
+        elif "displacement" in c and "cog" in c:
+            cond = Condition(name, _num(c["displacement"], where + " displacement", positive=True),
+                             _vec(c["cog"], where + " cog"), _num(c.get("fsm", 0.0), where + " fsm", nonneg=True))
+        else:
+            raise InputError(f"{where}: give either items = [...] or displacement and cog")
+        conds.append(cond)
+    if not conds:
+        raise InputError(f"{path}: no [[condition]] given")
+    off = _vec(hull.get("offset", [0.0, 0.0, 0.0]), f"{path}: [hull] offset")
+    return Case(path=path, mesh=mesh, units=str(hull.get("units", "m")), forward=str(hull.get("forward", "+x")),
+                up=str(hull.get("up", "+z")), offset=off, density=density, openings=tuple(openings),
+                conditions=tuple(conds))
