@@ -53,7 +53,7 @@ class Hull:
         rim_vertices = self._rim_vertices()
         self._prep = kernel.prepare(self.vertices, self.faces, rim_vertices=rim_vertices)
         self.total_volume, self.total_centroid = kernel.total_volume(self._prep)
-        self._deck_edge: np.ndarray | None = None
+        self._symmetric: bool | None = None
 
     def _rim_vertices(self) -> np.ndarray:
         if self.report.closed:
@@ -83,6 +83,18 @@ class Hull:
     @property
     def size(self) -> float:
         return float(max(self.length, self.breadth, self.depth))
+
+    @property
+    def is_symmetric(self) -> bool:
+        """True when the mesh is its own mirror image in y (to 1e-6 of its size)."""
+        if self._symmetric is None:
+            from scipy.spatial import cKDTree
+
+            v = self.vertices
+            mirrored = v * np.array([1.0, -1.0, 1.0])
+            d, _ = cKDTree(v).query(mirrored, k=1)
+            self._symmetric = bool(np.max(d) <= 1e-6 * max(self.size, 1e-9))
+        return self._symmetric
 
     @property
     def prepared(self) -> kernel.Prepared:

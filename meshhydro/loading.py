@@ -117,6 +117,16 @@ def _vec(v: Any, where: str) -> tuple[float, float, float]:
     return a[0], a[1], a[2]
 
 
+def rectangular_tank_fsm(length: float, breadth: float, density: float, *, compartments: int = 1) -> float:
+    """Free-surface moment [t·m] of a slack rectangular tank: ρ l b³ / 12, and with the
+    tank divided by longitudinal bulkheads into n equal compartments, ρ l b³ / (12 n²)
+    (textbook; each compartment has breadth b / n)."""
+    n = int(compartments)
+    if n < 1:
+        raise InputError(f"compartments must be at least 1, got {compartments!r}")
+    return float(density) * float(length) * (float(breadth) / n) ** 3 / 12.0 * n
+
+
 def condition_from_items(name: str, items: list[MassItem]) -> Condition:
     """Sum mass items into a condition (moments about the hull-frame origin)."""
     if not items:

@@ -121,7 +121,9 @@ def text_table(rows: Sequence[dict[str, Any]], keys: Sequence[str], units: dict[
         u = f"[{units[k]}]" if units.get(k) else ""
         w = max([len(h), len(u)] + [len(c) for c in cells])
         cols.append((h, u, cells, w))
-    lines = ["  ".join(h.rjust(w) for h, _, _, w in cols), "  ".join(u.rjust(w) for _, u, _, w in cols)]
+    lines = ["  ".join(h.rjust(w) for h, _, _, w in cols)]
+    if any(u for _, u, _, _ in cols):
+        lines.append("  ".join(u.rjust(w) for _, u, _, w in cols))
     for i in range(len(rows)):
         lines.append("  ".join(c[i].rjust(w) for _, _, c, w in cols))
     return "\n".join(lines) + "\n"

@@ -221,7 +221,7 @@ class RightingCurve:
         top = float(np.max(self.heel * sign))
         for a, b in ((0, 30), (0, 40), (30, 40)):
             if top >= b:
-                out[f"area_{a}_{b}"] = abs(self.area(sign * a, sign * b))
+                out[f"area_{a}_{b}"] = self.area(sign * a, sign * b)
         return out
 
     def rows(self) -> list[dict[str, Any]]:
