@@ -114,3 +114,92 @@ def cross_curves(cc: Any, path: str, *, title: str = "") -> None:
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     _save(fig, path)
+
+
+def largest_section(hull: Any, n: int = 41) -> tuple[float, np.ndarray]:
+    """x [m] and outline segments (k, 2, 3) of the transverse section of largest area."""
+    from . import kernel
+
+    prep = hull.prepared
+    lo, hi = hull.bounds[0][0], hull.bounds[1][0]
+    xs = np.linspace(lo, hi, n + 2)[1:-1]
+    top = np.array([0.0, 0.0, hull.bounds[1][2] + hull.size])
+    areas = [kernel.section_area(prep, x, top, np.array([0.0, 0.0, 1.0]))[0] for x in xs]
+    xb = float(xs[int(np.argmax(areas))])
+    cl = kernel.clip(prep, np.array([1.0, 0.0, 0.0]), xb - prep.origin[0])
+    return xb, cl.seg + prep.origin
+
+
+def section_view(hull: Any, traces: Sequence[Any], path: str, *, size: tuple[int, int] = (960, 720),
+                 current: int | None = None, labels: Sequence[str] | None = None) -> None:
+    """The transverse-plane figure: outline, waterlines, trace of B, metacentre locus, G and GZ.
+
+    Drawn in the hull frame as seen from astern (port on the left, starboard on the
+    right), so the vessel stands still and the waterline turns round it. With several
+    traces (compare mode) their B traces and metacentre loci are overlaid with a legend.
+    Metacentres beyond the window are drawn as arrow heads on its top edge.
+    """
+    dpi = 100
+    fig, ax = _figure(figsize=(size[0] / dpi, size[1] / dpi))
+    hulls = list(hull) if isinstance(hull, (list, tuple)) else [hull] * len(traces)
+    colours = ["tab:blue", "tab:red", "tab:green", "tab:purple", "tab:orange", "tab:brown"]
+    ylo, yhi, zlo, zhi = np.inf, -np.inf, np.inf, -np.inf
+    seen: set[int] = set()
+    for i, h in enumerate(hulls):
+        if id(h) in seen:
+            continue
+        seen.add(id(h))
+        _, seg = largest_section(h)
+        col = "0.25" if len(seen) == 1 and len(set(map(id, hulls))) == 1 else colours[i % len(colours)]
+        for s in seg:
+            ax.plot(s[:, 1], s[:, 2], color=col, lw=1.6)
+        ylo, yhi = min(ylo, h.bounds[0][1]), max(yhi, h.bounds[1][1])
+        zlo, zhi = min(zlo, h.bounds[0][2]), max(zhi, h.bounds[1][2])
+    w, hh = yhi - ylo, zhi - zlo
+    ext = max(w, hh)
+    y0, y1 = ylo - 0.3 * ext, yhi + 0.3 * ext
+    z0, z1 = zlo - 0.3 * ext, zhi + 0.9 * ext
+    for i, (h, t) in enumerate(zip(hulls, traces)):
+        col = colours[i % len(colours)]
+        name = (labels[i] if labels else t.label) or f"case {i + 1}"
+        K = np.array([h.x_ref, 0.0, 0.0])
+        if len(traces) == 1:
+            for k in range(len(t.heel)):
+                n = t.up[k]
+                d = np.array([n[2], -n[1]])  # waterline direction in (y, z)
+                d /= max(np.linalg.norm(d), 1e-12)
+                c = (K + t.draft[k] * n)[1:]
+                q = c + (t.cob[k][1:] - c) @ d * d
+                a, b = q - 0.6 * ext * d, q + 0.6 * ext * d
+                ax.plot([a[0], b[0]], [a[1], b[1]], color="tab:cyan", lw=0.8, alpha=0.5)
+        ax.plot(t.cob[:, 1], t.cob[:, 2], "o-", color=col, ms=3, lw=1.6, label=f"B trace: {name}")
+        m = t.metacentre
+        inside = (m[:, 2] <= z1) & (m[:, 1] >= y0) & (m[:, 1] <= y1)
+        mm = np.where(inside[:, None], m, np.nan)
+        ax.plot(mm[:, 1], mm[:, 2], "s--", color=col, ms=3, lw=1.0, alpha=0.85, label=f"M locus: {name}")
+        out = ~inside & (m[:, 1] >= y0) & (m[:, 1] <= y1)
+        if out.any():
+            ax.plot(m[out, 1], np.full(out.sum(), z1 - 0.02 * ext), "^", color=col, ms=6, alpha=0.8,
+                    label=f"M above the window (BM up to {float(np.max(t.bm[out])):.1f} m)")
+        ax.plot([t.cog[1]], [t.cog[2]], "X", color=col, ms=10, mec="k", label=f"G: {name}")
+        k = len(t.heel) - 1 if current is None else current
+        n = t.up[k]
+        z = t.cob[k] + ((t.cog - t.cob[k]) @ n) * n  # foot of the perpendicular from G on the vertical through B
+        ax.plot([t.cog[1], z[1]], [t.cog[2], z[2]], color="tab:orange" if len(traces) == 1 else col, lw=3,
+                label=f"GZ {t.gz[k]:+.3f} m at {t.heel[k]:g}°" + ("" if len(traces) == 1 else f" ({name})"))
+        ax.plot([t.cob[k][1], t.cob[k][1] + ext * n[1]], [t.cob[k][2], t.cob[k][2] + ext * n[2]], ":", color=col, lw=1)
+        for j in range(0, len(t.heel), max(1, len(t.heel) // 6)):
+            ax.annotate(f"{t.heel[j]:g}°", (t.cob[j][1], t.cob[j][2]), fontsize=7, color=col,
+                        xytext=(3, -9), textcoords="offset points")
+    ax.set_xlim(y0, y1)
+    ax.set_ylim(z0, z1)
+    ax.invert_xaxis()  # seen from astern: port (+y) on the left
+    ax.set_aspect("equal", adjustable="box")
+    ax.set_xlabel("y [m]   (seen from astern: port on the left, starboard on the right)")
+    ax.set_ylabel("z above baseline [m]")
+    ax.grid(True, alpha=0.3)
+    ax.legend(fontsize=7, loc="upper right")
+    ax.set_title("Heel sweep: trace of B and locus of the metacentre (hull frame)", fontsize=10)
+    fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    _save(fig, path, dpi=dpi)

@@ -1,0 +1,111 @@
+"""Heel-sweep commands of the CLI: sweep (frames, section view, sheet, GIF, trace) and compare."""
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+from typing import Any, Callable
+
+from .errors import InputError
+
+
+def cmd_sweep(args: argparse.Namespace) -> int:
+    from .cli_stability import _load_source
+    from .hydrostatics import parse_range
+    from .progress import Progress
+    from .sweep import heel_trace, parse_size, write_sweep
+
+    size = parse_size(args.size)
+    heels = parse_range(args.heels, "--heels")
+    if heels.min() < -180 or heels.max() > 180:
+        raise InputError("--heels must lie within -180..180°")
+    src = _load_source(args)
+    c = src.condition
+    bar = Progress(len(heels), "solving", enabled=None if not args.quiet else False)
+    tr = heel_trace(src.hull, c.displacement, c.cog, heels, density=src.density, fsm=c.fsm, label=src.label,
+                    progress=bar)
+    bar.close()
+    n_frames = len(tr.heel) if args.view in ("3d", "both") else 0
+    bar = Progress(max(n_frames, 1), "rendering", enabled=None if not args.quiet else False)
+    timings: dict[str, float] = {}
+    written = write_sweep(src.hull, tr, args.out, view=args.view, size=size, sheet=args.sheet, gif=args.gif,
+                          camera=args.camera, progress=bar, timings=timings)
+    bar.close()
+    frames = sum(1 for w in written if w.startswith("frames"))
+    others = [w for w in written if not w.startswith("frames")]
+    print(f"heel sweep of {src.label}: {len(tr.heel)} angles {tr.heel[0]:g}..{tr.heel[-1]:g}°")
+    for k in range(len(tr.heel)):
+        print(f"  {tr.heel[k]:7.2f}°  GZ {tr.gz[k]:+.4f} m  B ({tr.cob[k][1]:+.4f}, {tr.cob[k][2]:.4f}) m  "
+              f"BM {tr.bm[k]:.4f} m")
+    print(f"wrote {args.out}: {frames} frames, " + ", ".join(others))
+    return 0
+
+
+def _parse_compare_source(text: str) -> tuple[str, str | None]:
+    if "@" in text:
+        p, name = text.split("@", 1)
+        return p, name
+    return text, None
+
+
+def cmd_compare(args: argparse.Namespace) -> int:
+    from .hydrostatics import parse_range
+    from .loading import read_case
+    from .output import to_json, write_atomic
+    from .plots import section_view
+    from .sweep import heel_trace, parse_size
+
+    if len(args.sources) < 2:
+        raise InputError("compare needs two or more case files (CASE.toml or CASE.toml@condition)")
+    heels = parse_range(args.heels, "--heels")
+    size = parse_size(args.size)
+    hulls, traces, labels = [], [], []
+    cache: dict[str, Any] = {}
+    for s in args.sources:
+        path, name = _parse_compare_source(s)
+        if not path.lower().endswith(".toml"):
+            raise InputError(f"{s}: compare takes case files (CASE.toml or CASE.toml@condition)")
+        case = read_case(path)
+        cond = case.condition(name)
+        key = os.path.abspath(case.mesh)
+        if key not in cache:
+            cache[key] = case.load_hull()
+        hull = cache[key]
+        label = f"{os.path.splitext(os.path.basename(path))[0]}: {cond.name}"
+        traces.append(heel_trace(hull, cond.displacement, cond.cog, heels, density=case.density, fsm=cond.fsm,
+                                 label=label))
+        hulls.append(hull)
+        labels.append(label)
+    section_view(hulls, traces, args.out, size=size, labels=labels)
+    print(f"wrote {args.out}", file=sys.stderr)
+    if args.trace:
+        write_atomic(args.trace, to_json([t.to_dict() for t in traces]))
+        print(f"wrote {args.trace}", file=sys.stderr)
+    for t in traces:
+        print(f"{t.label}: B moves {abs(t.cob[-1][1] - t.cob[0][1]):.4f} m sideways over "
+              f"{t.heel[0]:g}..{t.heel[-1]:g}°, BM at upright {t.bm[0]:.4f} m")
+    return 0
+
+
+def register(sub: argparse._SubParsersAction, mesh_args: Callable, out_args: Callable, water_args: Callable) -> None:
+    from .cli_stability import _source_args
+
+    s = sub.add_parser("sweep", help="render the heel sweep: frames, section view, contact sheet, GIF, trace")
+    _source_args(s, mesh_args, water_args)
+    s.add_argument("--heels", default="0:90:5", help="START:STOP:STEP [deg] (default 0:90:5); negative start as --heels=-30:30:5")
+    s.add_argument("--out", required=True, help="output folder (replaced whole on a re-run)")
+    s.add_argument("--view", choices=("3d", "section", "both"), default="both")
+    s.add_argument("--camera", choices=("astern", "oblique"), default="astern")
+    s.add_argument("--gif", action="store_true", help="also write an animated GIF")
+    s.add_argument("--sheet", action="store_true", help="also write a contact sheet")
+    s.add_argument("--size", default="960x720", help="image size WIDTHxHEIGHT in pixels (default 960x720)")
+    s.add_argument("--quiet", action="store_true", help="no progress bars")
+    s.set_defaults(func=cmd_sweep)
+
+    c = sub.add_parser("compare", help="overlay B traces and metacentre loci of several cases in one figure")
+    c.add_argument("sources", nargs="+", help="CASE.toml or CASE.toml@condition, two or more")
+    c.add_argument("--heels", default="0:60:5", help="START:STOP:STEP [deg] (default 0:60:5)")
+    c.add_argument("--out", required=True, help="PNG to write")
+    c.add_argument("--trace", help="also write the traces as JSON")
+    c.add_argument("--size", default="960x720")
+    c.set_defaults(func=cmd_compare)

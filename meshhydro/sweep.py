@@ -1,0 +1,204 @@
+"""The heel sweep: B trace, metacentre locus and the outputs for a design review.
+
+At each heel of the sweep the hull floats at its free-trim position (displacement and
+longitudinal moment balanced). Per angle the trace holds, in the hull frame:
+
+* B, the centre of buoyancy;
+* M, the pro-metacentre of that angle: ``M = B + (I_T / V) up``, with I_T the
+  waterplane's second moment about its longitudinal axis through its centroid and
+  ``up`` the earth vertical of that angle (for a wall-sided box
+  ``BM_φ = B² / (12 T cos³ φ)``);
+* G (free-surface corrected), GZ, draft and trim.
+
+:func:`write_sweep` renders frames, the section view, a contact sheet and a GIF into a
+folder. It builds everything in a temporary folder beside the target and swaps it in
+only when complete; a target that holds anything but an earlier sweep is refused.
+"""
+from __future__ import annotations
+
+import json
+import os
+import shutil
+import tempfile
+import time
+from dataclasses import dataclass
+from typing import Any, Callable, Sequence
+
+import numpy as np
+
+from .errors import InputError
+from .output import to_json
+
+MARKER = ".meshhydro-sweep"
+
+
+@dataclass(frozen=True, eq=False)
+class Trace:
+    """Per-angle floating positions of a heel sweep (hull frame, SI; angles in degrees).
+
+    Attributes
+    ----------
+    heel, gz, draft, trim : (n,)
+    cob, metacentre, up : (n, 3)
+    bm : (n,) [m]
+        Distance from B to the pro-metacentre.
+    cog : (3,) [m]
+    displacement, density : float
+    label : str
+    """
+
+    heel: np.ndarray
+    gz: np.ndarray
+    draft: np.ndarray
+    trim: np.ndarray
+    cob: np.ndarray
+    metacentre: np.ndarray
+    up: np.ndarray
+    bm: np.ndarray
+    cog: np.ndarray
+    displacement: float
+    density: float
+    label: str = ""
+
+    def to_dict(self) -> dict[str, Any]:
+        rows = []
+        for k in range(len(self.heel)):
+            rows.append({"heel": float(self.heel[k]), "draft": float(self.draft[k]), "trim": float(self.trim[k]),
+                         "gz": float(self.gz[k]), "B": self.cob[k].tolist(), "M": self.metacentre[k].tolist(),
+                         "G": self.cog.tolist(), "up": self.up[k].tolist(), "bm": float(self.bm[k])})
+        return {"label": self.label, "displacement": self.displacement, "density": self.density,
+                "frame": "hull frame: x forward, y to port, z up [m]; heel positive starboard down",
+                "angles": rows}
+
+
+def heel_trace(hull: Any, displacement: float, cog: Sequence[float], heels: Sequence[float], *,
+               density: float = 1.025, fsm: float = 0.0, label: str = "", progress: Any = None) -> Trace:
+    """Free-trim positions over ``heels`` [deg] with B, M and G in the hull frame."""
+    c = hull.righting_curve(displacement, cog, heels=heels, density=density, fsm=fsm, progress=progress)
+    m = c.cob + c.bm[:, None] * c.up
+    return Trace(heel=c.heel, gz=c.gz, draft=c.draft, trim=c.trim, cob=c.cob, metacentre=m, up=c.up, bm=c.bm,
+                 cog=c.cog, displacement=float(displacement), density=c.density, label=label)
+
+
+def parse_size(text: str) -> tuple[int, int]:
+    """``'WxH'`` -> (W, H) in pixels, each 64 to 4096."""
+    try:
+        w, h = (int(x) for x in text.lower().split("x"))
+    except ValueError:
+        raise InputError(f"--size {text!r} is not WIDTHxHEIGHT, e.g. 960x720") from None
+    if not (64 <= w <= 4096 and 64 <= h <= 4096):
+        raise InputError(f"--size {text!r}: width and height must be 64 to 4096 pixels")
+    return w, h
+
+
+def _prepare_target(out: str) -> str:
+    """Check the output folder and return a fresh temporary folder beside it."""
+    out = os.path.abspath(out)
+    parent = os.path.dirname(out)
+    if not os.path.isdir(parent):
+        raise InputError(f"{out}: the parent folder {parent} does not exist")
+    if os.path.exists(out):
+        if not os.path.isdir(out):
+            raise InputError(f"{out}: exists and is not a folder")
+        if os.listdir(out) and not os.path.exists(os.path.join(out, MARKER)):
+            raise InputError(f"{out}: folder is not empty and holds no earlier sweep; choose another --out")
+    return tempfile.mkdtemp(prefix="." + os.path.basename(out) + ".", dir=parent)
+
+
+def _swap_in(tmp: str, out: str) -> None:
+    out = os.path.abspath(out)
+    old = None
+    if os.path.exists(out):
+        old = out + f".old-{os.getpid()}-{int(time.time() * 1000)}"
+        os.rename(out, old)
+    os.rename(tmp, out)
+    if old:
+        shutil.rmtree(old, ignore_errors=True)
+
+
+def contact_sheet(paths: Sequence[str], out: str, *, columns: int | None = None, pad: int = 6) -> None:
+    """Grid of frame images (PNG)."""
+    from PIL import Image
+
+    ims = [Image.open(p).convert("RGB") for p in paths]
+    w, h = ims[0].size
+    n = len(ims)
+    cols = columns or int(np.ceil(np.sqrt(n * h / w))) or 1
+    cols = max(1, min(cols, n))
+    rows = int(np.ceil(n / cols))
+    sheet = Image.new("RGB", (cols * w + (cols + 1) * pad, rows * h + (rows + 1) * pad), (255, 255, 255))
+    for i, im in enumerate(ims):
+        r, c = divmod(i, cols)
+        sheet.paste(im, (pad + c * (w + pad), pad + r * (h + pad)))
+    sheet.save(out, format="PNG")
+
+
+def animated_gif(paths: Sequence[str], out: str, *, frame_ms: int = 350, bounce: bool = True) -> None:
+    """GIF of the frames (forth and back when ``bounce``)."""
+    from PIL import Image
+
+    ims = [Image.open(p).convert("RGB") for p in paths]
+    seq = ims + ims[-2:0:-1] if bounce and len(ims) > 2 else ims
+    pal = [im.quantize(colors=255, method=Image.Quantize.MEDIANCUT) for im in seq]
+    pal[0].save(out, format="GIF", save_all=True, append_images=pal[1:], duration=frame_ms, loop=0, disposal=2)
+
+
+def write_sweep(hull: Any, trace: Trace, out: str, *, view: str = "both", size: tuple[int, int] = (960, 720),
+                sheet: bool = True, gif: bool = True, camera: str = "astern", progress: Any = None,
+                timings: dict[str, float] | None = None) -> list[str]:
+    """Write the sweep outputs into folder ``out`` (replacing an earlier sweep whole).
+
+    Writes ``trace.json``; with view 3d or both: ``frames/frame_NNN_<heel>.png``,
+    ``sheet.png`` and ``sweep.gif`` when asked; with section or both: ``section.png``.
+    Returns the written paths (relative to ``out``).
+    """
+    if view not in ("3d", "section", "both"):
+        raise InputError(f"view must be 3d, section or both, got {view!r}")
+    tmp = _prepare_target(out)
+    written: list[str] = []
+    tt = timings if timings is not None else {}
+    try:
+        with open(os.path.join(tmp, MARKER), "w") as fh:
+            fh.write("outputs of meshhydro sweep; this folder is replaced whole on the next run\n")
+        with open(os.path.join(tmp, "trace.json"), "w") as fh:
+            fh.write(to_json(trace.to_dict()))
+        written.append("trace.json")
+        if view in ("section", "both"):
+            from .plots import section_view
+
+            t = time.perf_counter()
+            section_view(hull, [trace], os.path.join(tmp, "section.png"), size=size)
+            tt["section"] = time.perf_counter() - t
+            written.append("section.png")
+        if view in ("3d", "both"):
+            from .render import Scene
+
+            t = time.perf_counter()
+            os.makedirs(os.path.join(tmp, "frames"))
+            scene = Scene(hull, trace, size=size, camera=camera)
+            frames = []
+            try:
+                for k in range(len(trace.heel)):
+                    name = f"frame_{k:03d}_{trace.heel[k]:+07.2f}.png".replace("+", "p").replace("-", "m")
+                    path = os.path.join(tmp, "frames", name)
+                    scene.render(k, path)
+                    frames.append(path)
+                    written.append(os.path.join("frames", name))
+                    if progress is not None:
+                        progress()
+            finally:
+                scene.close()
+            tt["render"] = time.perf_counter() - t
+            t = time.perf_counter()
+            if sheet:
+                contact_sheet(frames, os.path.join(tmp, "sheet.png"))
+                written.append("sheet.png")
+            if gif:
+                animated_gif(frames, os.path.join(tmp, "sweep.gif"))
+                written.append("sweep.gif")
+            tt["sheet_gif"] = time.perf_counter() - t
+        _swap_in(tmp, out)
+    except BaseException:
+        shutil.rmtree(tmp, ignore_errors=True)
+        raise
+    return written

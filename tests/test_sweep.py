@@ -1,0 +1,117 @@
+"""Heel sweep: B trace and metacentre locus against closed forms; rendered images checked as pictures."""
+from __future__ import annotations
+
+import json
+import math
+import os
+
+import numpy as np
+import pytest
+from PIL import Image
+
+from meshhydro import load_hull
+from meshhydro.forms import box, cylinder
+from meshhydro.frames import up_vector
+from meshhydro.sweep import heel_trace, write_sweep
+
+from conftest import tm
+
+RHO = 1.025
+
+
+def test_box_b_trace_is_the_textbook_parabola(box_hull):
+    # Wall-sided box: B shifts (B²/12T) tan φ transversely and rises (B²/24T) tan² φ above KB,
+    # and the pro-metacentre is BM_φ = B²/(12 T cos³ φ) from B (Rawson & Tupper; Barrass & Derrett).
+    B, T = 6.0, 1.5
+    heels = np.arange(0.0, 26.0, 5.0)  # bilge emerges at 26.6°
+    tr = heel_trace(box_hull, RHO * 20 * B * T, (10.0, 0.0, 2.0), heels)
+    t = np.tan(np.radians(heels))
+    assert np.allclose(tr.cob[:, 1], -(B * B / (12 * T)) * t, atol=1e-10)  # towards starboard (-y)
+    assert np.allclose(tr.cob[:, 2], T / 2 + (B * B / (24 * T)) * t * t, atol=1e-10)
+    bm = B * B / (12 * T * np.cos(np.radians(heels)) ** 3)
+    assert np.allclose(tr.bm, bm, rtol=1e-10)
+    assert np.allclose(np.linalg.norm(tr.metacentre - tr.cob, axis=1), bm, rtol=1e-10)
+
+
+def test_cylinder_metacentre_locus_is_the_axis():
+    # a circular cylinder's waterplane is the same at every heel: M stays on the axis (geometry)
+    R = 1.0
+    hull = load_hull(tm(*cylinder(8.0, R, segments=256)))
+    vol = 0.4 * math.pi * R * R * 8.0
+    tr = heel_trace(hull, RHO * vol, (4.0, 0.0, 0.7), np.arange(0.0, 91.0, 15.0))
+    axis = np.array([R * 0, 0.0, R])
+    d = np.linalg.norm(tr.metacentre[:, 1:] - axis[1:], axis=1)
+    assert np.all(d < 2e-3 * R)  # faceting error of a 256-sided polygon, O(h²)
+    # and B moves on a circle about the axis
+    rb = np.linalg.norm(tr.cob[:, 1:] - axis[1:], axis=1)
+    assert np.ptp(rb) < 1e-3 * R
+
+
+def test_fully_submerged_body_b_does_not_move():
+    # no waterplane: B is the centroid of the body whatever the heel (geometry)
+    v, f = box(4.0, 1.0, 1.0)
+    hull = load_hull(tm(v, f))
+    ref = hull.total_centroid
+    for h in np.arange(0.0, 181.0, 15.0):
+        n = up_vector(h, 3.0)
+        c = hull.cut(ref + 5.0 * n, n)
+        assert c.waterplane_area == 0.0
+        assert c.volume == pytest.approx(hull.total_volume, rel=1e-13)
+        assert np.allclose(c.centroid, ref, atol=1e-12)
+
+
+def _colour_fractions(path):
+    a = np.asarray(Image.open(path).convert("RGB")).astype(int)
+    r, g, b = a[..., 0], a[..., 1], a[..., 2]
+    water = (b > r + 15) & (b > g - 5)
+    hull_above = (abs(r - g) < 25) & (r > 120) & (b < r - 8) & (r < 235)
+    hull_below = (r > g + 40) & (r > b + 40)
+    return a, water.mean(), hull_above.mean(), hull_below.mean()
+
+
+@pytest.fixture(scope="module")
+def rendered(tmp_path_factory):
+    v, f = box(12.0, 4.0, 2.0)
+    hull = load_hull(tm(v, f))
+    tr = heel_trace(hull, RHO * 12 * 4 * 0.8, (6.0, 0.0, 1.0), [0.0, 20.0, 40.0])
+    out = tmp_path_factory.mktemp("s") / "sweep"
+    written = write_sweep(hull, tr, str(out), view="both", size=(320, 240), sheet=True, gif=True)
+    return hull, tr, out, written
+
+
+def test_frames_are_pictures_of_the_right_size_and_colours(rendered):
+    hull, tr, out, written = rendered
+    frames = sorted(p for p in written if p.startswith("frames"))
+    assert len(frames) == 3
+    imgs = []
+    for p in frames:
+        im = Image.open(out / p)
+        assert im.size == (320, 240)
+        a, water, above, below = _colour_fractions(out / p)
+        assert a.std() > 10  # not blank
+        assert 0.03 < water < 0.8, water
+        assert 0.01 < above < 0.7, above
+        assert 0.002 < below < 0.5, below
+        imgs.append(a)
+    assert np.abs(imgs[0] - imgs[2]).mean() > 2  # two heel angles give different images
+    sheet = Image.open(out / "sheet.png")
+    assert sheet.size[0] >= 320 and sheet.size[1] >= 240
+    gif = Image.open(out / "sweep.gif")
+    assert gif.n_frames >= 3
+
+
+def test_trace_json_and_clean_rerun(rendered, tmp_path):
+    hull, tr, out, written = rendered
+    d = json.loads((out / "trace.json").read_text())
+    assert [a["heel"] for a in d["angles"]] == [0.0, 20.0, 40.0]
+    assert np.allclose(d["angles"][1]["B"], tr.cob[1])
+    # re-running replaces the folder whole: old frames vanish
+    write_sweep(hull, tr, str(out), view="section", size=(320, 240))
+    assert sorted(os.listdir(out)) == sorted([".meshhydro-sweep", "section.png", "trace.json"])
+    # a folder that holds other files is not touched
+    other = tmp_path / "mine"
+    other.mkdir()
+    (other / "keep.txt").write_text("x")
+    with pytest.raises(Exception, match="not empty"):
+        write_sweep(hull, tr, str(other), view="section")
+    assert (other / "keep.txt").exists()
