@@ -193,6 +193,9 @@ def build_parser() -> argparse.ArgumentParser:
     from . import cli_sweep
 
     cli_sweep.register(sub, _mesh_args, _out_args, _water_args)
+    from . import cli_sections
+
+    cli_sections.register(sub, _mesh_args, _out_args, _water_args)
     return p
 
 

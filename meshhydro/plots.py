@@ -203,3 +203,28 @@ def section_view(hull: Any, traces: Sequence[Any], path: str, *, size: tuple[int
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     _save(fig, path, dpi=dpi)
+
+
+def convergence_plot(rows: Sequence[dict[str, Any]], path: str, *, title: str = "") -> None:
+    """Error of section-based estimates [%] against the number of stations, log-log, per rule."""
+    keys = [k for k in rows[0] if k.endswith("_error_percent")]
+    fig, ax = _figure(figsize=(9, 6))
+    styles = {"simpson": "-", "trapezoid": "--"}
+    colours = dict(zip(keys, ["tab:blue", "tab:orange", "tab:green", "tab:red", "tab:purple", "tab:brown", "tab:pink"]))
+    for rule in sorted({r["rule"] for r in rows}):
+        sel = [r for r in rows if r["rule"] == rule]
+        n = np.array([r["stations"] for r in sel])
+        for k in keys:
+            e = np.abs([r[k] for r in sel])
+            if np.all(e < 1e-10):
+                continue
+            ax.loglog(n, np.maximum(e, 1e-12), styles.get(rule, ":"), marker="o", ms=3, color=colours[k],
+                      label=f"{k.replace('_error_percent', '')} ({rule})")
+    ax.set_xlabel("number of station intervals")
+    ax.set_ylabel("|estimate - exact| [%]  (LCB, LCF: % of length)")
+    ax.grid(True, which="both", alpha=0.3)
+    ax.legend(fontsize=7, ncol=2)
+    ax.set_title(title or "Section-based estimates against the exact mesh result")
+    fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    _save(fig, path)
