@@ -67,6 +67,7 @@ def test_sweep_and_compare_cli(tmp_path):
     assert sorted(os.listdir(out / "frames")) and (out / "sheet.png").exists() and (out / "section.png").exists()
     code, so, err = run("compare", f"{tmp_path / 'b.toml'}@a", f"{tmp_path / 'b.toml'}@high", "--heels", "0:30:10",
                         "--out", str(tmp_path / "c.png"))
-    assert code == 0, err and (tmp_path / "c.png").stat().st_size > 5000
+    assert code == 0, err
+    assert (tmp_path / "c.png").stat().st_size > 5000
     code, so, err = run("sweep", str(tmp_path / "b.toml"), "--out", str(out), "--size", "big")
     assert code == 2 and "--size" in err

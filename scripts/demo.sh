@@ -1,0 +1,30 @@
+#!/usr/bin/env bash
+# The main job on the shipped demo vessel "Brindle" (an invented 12 m work barge):
+# mesh check, hydrostatic table and curves, floating position, GZ curve with free trim,
+# IMO 2008 IS Code 2.2 criteria, and the rendered heel sweep. Outputs go to demo_out/.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+MH="${MESHHYDRO:-meshhydro}"
+OUT=demo_out
+mkdir -p "$OUT"
+CASE=meshes/cases/brindle_barge.toml
+echo "== 1. mesh health check"
+"$MH" check meshes/brindle_barge.stl
+echo; echo "== 2. hydrostatic table (also $OUT/hydrostatics.csv and the curves $OUT/hydrostatics.png)"
+"$MH" table meshes/brindle_barge.stl --drafts 0.2:1.4:0.2 --plot "$OUT/hydrostatics.png"
+"$MH" table meshes/brindle_barge.stl --drafts 0.2:1.4:0.1 --format csv --out "$OUT/hydrostatics.csv"
+echo; echo "== 3. floating position of the loaded condition"
+"$MH" float "$CASE"
+"$MH" float "$CASE" --format json --out "$OUT/float.json"
+echo; echo "== 4. righting levers with free trim, both directions (GZ plot $OUT/gz.png)"
+"$MH" righting "$CASE" --heels 0:180:1 --plot "$OUT/gz.png" --format csv --out "$OUT/gz.csv" --quiet
+"$MH" righting "$CASE" --heels 0:90:10 --quiet
+echo; echo "== 5. criteria (exit status 1 means not all met)"
+status=0
+"$MH" criteria "$CASE" --quiet || status=$?
+"$MH" criteria "$CASE" --quiet --format json --out "$OUT/criteria.json" || true
+echo "criteria exit status: $status"
+echo; echo "== 6. heel sweep: frames, section view, contact sheet, GIF in $OUT/sweep/"
+"$MH" sweep "$CASE" --heels 0:60:5 --out "$OUT/sweep" --sheet --gif --quiet
+echo; echo "done: outputs in $OUT/"
+ls -1 "$OUT" "$OUT/sweep"
