@@ -111,19 +111,23 @@ def solve_volume(ev: Evaluator, v0: float, heel: float, trim: float, s0: float |
                  tol: float = VOLUME_TOL) -> State:
     """Bracketed Newton on s at fixed heel and trim so that V = v0 (V is monotone in s)."""
     lo, hi = ev.s_range(heel, trim)
-    vmax = ev.hull.total_volume
-    if v0 >= vmax * (1 - 1e-12):
+    closed = bool(ev.hull.report.closed)
+    vmax = ev.hull.total_volume if closed else None
+    if vmax is not None and v0 >= vmax * (1 - 1e-12):
         raise CannotFloatError(_too_heavy_message(ev.hull, v0))
     a, b = lo, hi
-    s = s0 if s0 is not None and lo < s0 < hi else lo + (hi - lo) * min(max(v0 / vmax, 0.05), 0.95)
+    frac = 0.5 if vmax is None else min(max(v0 / vmax, 0.05), 0.95)
+    s = s0 if s0 is not None and lo < s0 < hi else lo + (hi - lo) * frac
     best = None
-    for _ in range(100):
+    rim: OpenRimError | None = None
+    for _ in range(200):
         try:
             st = ev.state(s, heel, trim)
-        except OpenRimError:
-            b = s  # above the rim: treat as too deep
-            if b - a < 1e-13 * ev.L:
-                raise
+        except OpenRimError as exc:
+            rim = exc
+            b = s  # the rim is under water here: the answer lies lower
+            if b - a < 1e-12 * max(ev.L, 1.0):
+                break
             s = 0.5 * (a + b)
             continue
         r = st.cut.volume - v0
@@ -143,6 +147,12 @@ def solve_volume(ev: Evaluator, v0: float, heel: float, trim: float, s0: float |
         s = s_new
     if best is not None and abs(best.cut.volume - v0) <= 1e-9 * v0:
         return best
+    if rim is not None or (not closed and best is not None and best.cut.volume < v0):
+        held = best.cut.volume if best is not None and best.cut.volume < v0 else None
+        more = f" (the open hull holds about {held:.6g} m³ below its rim there)" if held else ""
+        detail = f": {rim}" if rim is not None else ""
+        raise OpenRimError(f"the load needs {v0:.6g} m³ of displacement but the water reaches an open rim "
+                           f"of the mesh first at heel {heel:g}°, trim {trim:g}°{more}{detail}")
     raise NotConvergedError(f"could not find the draft for volume {v0:.6g} m³ at heel {heel:g}°, trim {trim:g}°")
 
 
@@ -306,7 +316,7 @@ def _check_load(hull: Any, displacement: float, density: float) -> tuple[float, 
     if not math.isfinite(d) or d <= 0:
         raise InputError(f"displacement must be a positive number of tonnes, got {displacement!r}")
     v0 = d / rho
-    if v0 >= hull.total_volume * (1 - 1e-12):
+    if hull.report.closed and v0 >= hull.total_volume * (1 - 1e-12):
         raise CannotFloatError(
             f"the load needs {d:.6g} t but the closed hull displaces at most {hull.total_volume * rho:.6g} t "
             f"fully submerged (ρ = {rho:g} t/m³): it cannot float")

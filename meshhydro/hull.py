@@ -52,6 +52,7 @@ class Hull:
         self.x_ref = float(0.5 * (lo[0] + hi[0]) if x_ref is None else x_ref)
         rim_vertices = self._rim_vertices()
         self._prep = kernel.prepare(self.vertices, self.faces, rim_vertices=rim_vertices)
+        #: volume [m³] and centroid (3,) of the whole mesh; meaningful only when the mesh is closed
         self.total_volume, self.total_centroid = kernel.total_volume(self._prep)
         self._symmetric: bool | None = None
 

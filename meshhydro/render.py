@@ -32,6 +32,12 @@ def _pv():
     import pyvista as pv
 
     pv.OFF_SCREEN = True
+    try:  # VTK warns about the missing X display before it falls back to off-screen EGL
+        from vtkmodules.vtkCommonCore import vtkLogger
+
+        vtkLogger.SetStderrVerbosity(vtkLogger.VERBOSITY_ERROR)
+    except ImportError:  # pragma: no cover - older VTK
+        pass
     return pv
 
 

@@ -263,3 +263,15 @@ def test_user_criteria_file(tmp_path, box_hull):
     bad.write_text('[[criterion]]\nkind = "bogus"\nminimum = 1\n')
     with pytest.raises(Exception, match="criterion 1"):
         read_criteria(str(bad))
+
+
+def test_open_hull_floats_below_its_rim_and_says_when_it_cannot():
+    from meshhydro import OpenRimError
+
+    v, f = box(10.0, 4.0, 2.0)
+    top = np.all(v[f][:, :, 2] == 2.0, axis=1)
+    hull = load_hull(tm(v, f[~top]))  # an open-topped box (a scan with no deck)
+    eq = hull.equilibrium(RHO * 40.0, (5.0, 0.0, 0.8))
+    assert eq.draft == pytest.approx(1.0, rel=1e-10)
+    with pytest.raises(OpenRimError, match="open rim"):
+        hull.equilibrium(RHO * 90.0, (5.0, 0.0, 0.8))  # needs more than the 80 m³ below the rim
