@@ -10,14 +10,13 @@ import argparse
 import os
 import sys
 import traceback
-from typing import Any, Callable, Sequence
+from typing import Sequence
 
 from . import __version__
 from .errors import InputError, MeshHydroError
-from .output import key_values, text_table, to_csv, to_json, write_atomic
+from .output import emit, key_values, text_table, to_csv, to_json
+from .criteria import CAUTION
 
-CAUTION = ("CAUTION: a design aid, not an approval. The flag administration, class rules, local "
-           "codes and a qualified naval architect decide whether a vessel is fit to go to sea.")
 
 
 # ---------------------------------------------------------------------------- helpers
@@ -75,11 +74,7 @@ def _load(args: argparse.Namespace, path: str | None = None):
 
 
 def _emit(args: argparse.Namespace, text: str) -> None:
-    if getattr(args, "out", None):
-        write_atomic(args.out, text)
-        print(f"wrote {args.out}", file=sys.stderr)
-    else:
-        sys.stdout.write(text)
+    emit(getattr(args, "out", None), text)
 
 
 # ---------------------------------------------------------------------------- check
@@ -154,7 +149,7 @@ def cmd_table(args: argparse.Namespace) -> int:
         keys = [k for k in FIELDS if k not in ("heel", "trim")]
         head = (f"hydrostatics: {hull.name}  density {rho:g} t/m³  heel {args.heel:g}°  trim {args.trim:g}° "
                 f"(draft at x = {hull.x_ref:.3f} m on the centreline, above z = 0)\n")
-        _emit(args, head + text_table(rows, keys, UNITS, digits))
+        _emit(args, head + text_table(rows, keys, UNITS, digits) + CAUTION + "\n")
     return 0
 
 

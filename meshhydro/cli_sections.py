@@ -8,17 +8,14 @@ from typing import Any, Callable
 import numpy as np
 
 from .errors import InputError
-from .output import text_table, to_csv, to_json, write_atomic
+from .criteria import CAUTION
+from .output import emit, text_table, to_csv, to_json, write_atomic
 
 CMP_UNITS = {"draft": "m", "exact": "", "estimate": "", "difference": "", "percent": "%"}
 
 
 def _emit(args: argparse.Namespace, text: str) -> None:
-    if getattr(args, "out", None):
-        write_atomic(args.out, text)
-        print(f"wrote {args.out}", file=sys.stderr)
-    else:
-        sys.stdout.write(text)
+    emit(getattr(args, "out", None), text)
 
 
 def cmd_sections(args: argparse.Namespace) -> int:
@@ -80,6 +77,7 @@ def cmd_sections(args: argparse.Namespace) -> int:
         heads = {k: k.replace("_error_percent", "") for k in keys}
         out.append(text_table(conv, keys, None, 4, heads).rstrip())
         out += [f"note: {n}" for n in sorted(notes)]
+        out.append(CAUTION)
         _emit(args, "\n".join(out) + "\n")
     return 0
 
@@ -135,6 +133,7 @@ def cmd_offsets(args: argparse.Namespace) -> int:
         out += [f"note: {n}" for n in sh.notes if not n.startswith("vertical (up to")] + \
                [f"note: vertical integration: {n.split(': ', 1)[1]}" for n in sorted(
                    {n for n in sh.notes if n.startswith("vertical (up to")}, key=lambda s: s)[:3]]
+        out.append(CAUTION)
         _emit(args, "\n".join(out) + "\n")
     return 0
 

@@ -14,10 +14,9 @@ from typing import Any, Callable
 import numpy as np
 
 from .errors import InputError
-from .output import key_values, text_table, to_csv, to_json, write_atomic
+from .output import emit, key_values, text_table, to_csv, to_json
+from .criteria import CAUTION
 
-CAUTION = ("CAUTION: a design aid, not an approval. The flag administration, class rules, local codes and a "
-           "qualified naval architect decide whether a vessel is fit to go to sea.")
 
 
 @dataclass
@@ -79,11 +78,7 @@ def _load_source(args: argparse.Namespace) -> Loaded:
 
 
 def _emit(args: argparse.Namespace, text: str) -> None:
-    if getattr(args, "out", None):
-        write_atomic(args.out, text)
-        print(f"wrote {args.out}", file=sys.stderr)
-    else:
-        sys.stdout.write(text)
+    emit(getattr(args, "out", None), text)
 
 
 def _condition_text(cond: Any) -> str:
@@ -205,7 +200,7 @@ def cmd_righting(args: argparse.Namespace) -> int:
     rows = curve.rows()
     keys = ROW_KEYS + (["deck_freeboard"] if curve.deck_freeboard is not None else [])
     for name, fb in curve.openings.items():
-        for r, v in zip(rows, fb):
+        for r, v in zip(rows, fb, strict=False):
             r[f"opening:{name}"] = float(v)
         keys.append(f"opening:{name}")
     if args.format == "json":

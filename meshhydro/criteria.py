@@ -39,8 +39,12 @@ from typing import Any
 
 from .errors import InputError
 
-CAUTION = ("CAUTION: this is a design aid, not an approval. Whether a vessel complies is decided by the flag "
-           "administration, class rules and local codes, applied by a qualified naval architect.")
+#: The caution that every output a safety decision could rest on carries.
+CAUTION = ("CAUTION: a design aid, not an approval. The flag administration, class rules, local codes and a "
+           "qualified naval architect decide whether a vessel complies and is fit to go to sea.")
+#: The same in short, for figures.
+CAUTION_SHORT = ("Design aid, not an approval: flag administration, class rules, local codes "
+                 "and a qualified naval architect decide.")
 
 KINDS = {
     "area": "m·rad",

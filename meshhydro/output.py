@@ -34,6 +34,17 @@ def write_atomic(path: str, data: str | bytes) -> None:
         raise
 
 
+def emit(path: str | None, text: str) -> None:
+    """Write ``text`` atomically to ``path`` (and say so on stderr), or to stdout when no path."""
+    import sys
+
+    if path:
+        write_atomic(path, text)
+        print(f"wrote {path}", file=sys.stderr)
+    else:
+        sys.stdout.write(text)
+
+
 def save_atomic(path: str, writer: Callable[[str], None]) -> None:
     """Call ``writer(tmp_path)`` and move the result onto ``path`` only if it succeeds."""
     ext = os.path.splitext(path)[1]

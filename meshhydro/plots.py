@@ -6,9 +6,8 @@ from typing import Any, Sequence
 import numpy as np
 
 from .output import save_atomic
+from .criteria import CAUTION_SHORT as CAUTION
 
-CAUTION = ("Design aid, not an approval: flag administration, class rules, local codes "
-           "and a qualified naval architect decide.")
 
 
 def _figure(*args: Any, **kw: Any):
@@ -41,7 +40,7 @@ def hydrostatic_curves(rows: Sequence[dict[str, float]], path: str, *, title: st
         (("cb", "Cb"), ("cp", "Cp"), ("cm", "Cm"), ("cwp", "Cwp")),
     ]
     fig, axes = _figure(2, 3, figsize=(13, 8), sharey=True)
-    for ax, panel in zip(axes.ravel(), panels):
+    for ax, panel in zip(axes.ravel(), panels, strict=False):
         for key, label in panel:
             ax.plot([r[key] for r in rows], t, marker=".", label=label)
         vals = np.concatenate([[r[k] for r in rows] for k, _ in panel])
@@ -159,7 +158,7 @@ def section_view(hull: Any, traces: Sequence[Any], path: str, *, size: tuple[int
     ext = max(w, hh)
     y0, y1 = ylo - 0.3 * ext, yhi + 0.3 * ext
     z0, z1 = zlo - 0.3 * ext, zhi + 0.9 * ext
-    for i, (h, t) in enumerate(zip(hulls, traces)):
+    for i, (h, t) in enumerate(zip(hulls, traces, strict=False)):
         col = colours[i % len(colours)]
         name = (labels[i] if labels else t.label) or f"case {i + 1}"
         K = np.array([h.x_ref, 0.0, 0.0])
@@ -210,7 +209,7 @@ def convergence_plot(rows: Sequence[dict[str, Any]], path: str, *, title: str = 
     keys = [k for k in rows[0] if k.endswith("_error_percent")]
     fig, ax = _figure(figsize=(9, 6))
     styles = {"simpson": "-", "trapezoid": "--"}
-    colours = dict(zip(keys, ["tab:blue", "tab:orange", "tab:green", "tab:red", "tab:purple", "tab:brown", "tab:pink"]))
+    colours = dict(zip(keys, ["tab:blue", "tab:orange", "tab:green", "tab:red", "tab:purple", "tab:brown", "tab:pink"], strict=False))
     for rule in sorted({r["rule"] for r in rows}):
         sel = [r for r in rows if r["rule"] == rule]
         n = np.array([r["stations"] for r in sel])

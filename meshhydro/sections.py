@@ -412,7 +412,7 @@ def compare_rows(exact: Sequence[dict[str, float]], approx: Sequence[dict[str, f
     other quantities relative to the exact value.
     """
     out = []
-    for e, a in zip(exact, approx):
+    for e, a in zip(exact, approx, strict=False):
         for k in keys:
             ev, av = float(e[k]), float(a[k])
             ref = scale if k in ("lcb", "lcf") else abs(ev)

@@ -394,7 +394,7 @@ def righting_curve(hull: Any, *, displacement: float, cog: np.ndarray, heels: Se
     solved: dict[float, tuple[State, int]] = {}
     for part in (pos, neg):
         if len(part):
-            for h, (st, n) in zip(part, _sweep(ev, v0, g, part, up0, free_trim, progress)):
+            for h, (st, n) in zip(part, _sweep(ev, v0, g, part, up0, free_trim, progress), strict=False):
                 solved[float(h)] = (st, n)
     k0 = float(hs[np.argmin(np.abs(hs))])
     st, n = solved[k0]

@@ -16,13 +16,12 @@ only when complete; a target that holds anything but an earlier sweep is refused
 """
 from __future__ import annotations
 
-import json
 import os
 import shutil
 import tempfile
 import time
 from dataclasses import dataclass
-from typing import Any, Callable, Sequence
+from typing import Any, Sequence
 
 import numpy as np
 

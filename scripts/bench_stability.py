@@ -37,7 +37,7 @@ def bench(name: str, hull, disp: float, cog, cross: bool) -> None:
         ds = np.linspace(0.5 * disp, 1.4 * disp, 10)
         ds = ds[ds / c.density < 0.95 * hull.total_volume]
         t = time.perf_counter()
-        cc = cross_curves(hull, ds, np.arange(0.0, 181.0, 5.0), density=c.density)
+        cross_curves(hull, ds, np.arange(0.0, 181.0, 5.0), density=c.density)
         tx = time.perf_counter() - t
         line += f" {tx:>9.2f} {len(ds) * 37:>7d}"
     print(line, flush=True)

@@ -78,12 +78,12 @@ def test_wigley_coefficients_approached_simpson_faster():
     for k in ("bmt", "bml"):
         s = [e[k] for e in err["simpson"]]
         t = [e[k] for e in err["trapezoid"]]
-        assert all(a > b for a, b in zip(s, s[1:])) and all(a > b for a, b in zip(t, t[1:]))
-        assert all(si < ti for si, ti in zip(s, t))
+        assert all(a > b for a, b in zip(s, s[1:], strict=False)) and all(a > b for a, b in zip(t, t[1:], strict=False))
+        assert all(si < ti for si, ti in zip(s, t, strict=False))
         assert np.log2(s[-2] / s[-1]) == pytest.approx(4.0, abs=0.3)
         assert np.log2(t[-2] / t[-1]) == pytest.approx(2.0, abs=0.3)
     for k in ("volume", "awp"):
-        assert all(a > b for a, b in zip([e[k] for e in err["trapezoid"]][:-1], [e[k] for e in err["trapezoid"]][1:]))
+        assert all(a > b for a, b in zip([e[k] for e in err["trapezoid"]][:-1], [e[k] for e in err["trapezoid"]][1:], strict=False))
 
 
 def test_mesh_to_offsets_to_loft_converges_to_the_original():
@@ -97,7 +97,7 @@ def test_mesh_to_offsets_to_loft_converges_to_the_original():
         assert lofted.report.closed and not lofted.report.problems
         h = lofted.hydrostatics(T)
         errs.append(max(abs(h.volume / ex.volume - 1), abs(h.bmt / ex.bmt - 1), abs(h.vcb / ex.vcb - 1)))
-    assert all(a > b for a, b in zip(errs, errs[1:]))
+    assert all(a > b for a, b in zip(errs, errs[1:], strict=False))
     assert errs[-1] < 2e-3
 
 

@@ -8,9 +8,8 @@ import pytest
 
 from meshhydro import CannotFloatError, load_hull
 from meshhydro.criteria import IMO_2008_GENERAL, evaluate, read_criteria
-from meshhydro.equilibrium import Evaluator, residuals
-from meshhydro.forms import box, wigley
-from meshhydro.frames import longitudinal_direction, transverse_direction
+from meshhydro.forms import box
+from meshhydro.frames import longitudinal_direction
 from meshhydro.loading import condition_from_items, MassItem, rectangular_tank_fsm
 from meshhydro.loft import loft
 
