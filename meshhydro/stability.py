@@ -434,11 +434,11 @@ def find_loll(ev: Evaluator, v0: float, g: np.ndarray, upright: State) -> tuple[
             gz = (g - st.cut.centroid) @ transverse_direction(st.heel)
             if prev is not None and prev[1] * sign <= 0 < gz * sign:
                 res = newton(ev, v0, g, st, free_heel=True, free_trim=True)
-                if res.converged and (best is None or abs(res.state.heel) < abs(best.heel) - 1e-9):
+                if res.converged and (best is None or abs(res.state.heel) < abs(best.heel) - 1e-6):
                     best = res.state
                 break
             prev = (st, gz)
-    # a symmetric load lolls equally both ways: the starboard (positive) angle is kept on ties
+    # a symmetric load lolls equally both ways: the starboard (positive) angle is kept on ties (1e-6°)
     return best, 0
 
 
