@@ -522,9 +522,8 @@ def section_area(
         First moment of that area about the hull baseline z = 0.
     """
     ex = np.array([1.0, 0.0, 0.0])
-    nx_ = ex
     dx = float(x - prep.origin[0])
-    cl = clip(prep, nx_, dx)
+    cl = clip(prep, ex, dx)
     if len(cl.seg) == 0:
         return 0.0, 0.0
     seg = cl.seg  # CCW about +x, centred
