@@ -17,8 +17,6 @@ from .errors import InputError, MeshHydroError
 from .output import emit, key_values, text_table, to_csv, to_json
 from .criteria import CAUTION
 
-
-
 # ---------------------------------------------------------------------------- helpers
 
 
@@ -75,6 +73,13 @@ def _load(args: argparse.Namespace, path: str | None = None):
 
 def _emit(args: argparse.Namespace, text: str) -> None:
     emit(getattr(args, "out", None), text)
+
+
+def _progress(args: argparse.Namespace, total: int, label: str):
+    """A progress bar on a terminal, none with --quiet."""
+    from .progress import Progress
+
+    return Progress(total, label, enabled=False if getattr(args, "quiet", False) else None)
 
 
 # ---------------------------------------------------------------------------- check

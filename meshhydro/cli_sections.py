@@ -9,18 +9,14 @@ import numpy as np
 
 from .errors import InputError
 from .criteria import CAUTION
-from .output import emit, text_table, to_csv, to_json, write_atomic
+from .cli import _density, _emit, _load
+from .output import text_table, to_csv, to_json, write_atomic
 
 CMP_UNITS = {"draft": "m", "exact": "", "estimate": "", "difference": "", "percent": "%"}
 
 
-def _emit(args: argparse.Namespace, text: str) -> None:
-    emit(getattr(args, "out", None), text)
-
-
 def cmd_sections(args: argparse.Namespace) -> int:
     from . import sections as S
-    from .cli import _density, _load
     from .hydrostatics import parse_range
 
     hull = _load(args)
@@ -84,7 +80,6 @@ def cmd_sections(args: argparse.Namespace) -> int:
 
 def cmd_offsets(args: argparse.Namespace) -> int:
     from . import sections as S
-    from .cli import _density
 
     off = S.read_offsets(args.table)
     rho = _density(args)
@@ -107,8 +102,6 @@ def cmd_offsets(args: argparse.Namespace) -> int:
         exact = [lofted.hydrostatics(r["draft"], density=rho).to_dict() for r in sh.rows]
         result["lofted_vs_table"] = S.compare_rows(exact, sh.rows, scale=lofted.length)
     if args.compare:
-        from .cli import _load
-
         ref = _load(args, args.compare)
         exact = [ref.hydrostatics(r["draft"], density=rho).to_dict() for r in sh.rows]
         result["table_vs_mesh"] = S.compare_rows(exact, sh.rows, scale=ref.length)

@@ -13,10 +13,10 @@ from typing import Any, Callable
 
 import numpy as np
 
-from .errors import InputError
-from .output import emit, key_values, text_table, to_csv, to_json
+from .cli import _density, _emit, _load, _progress, _vec
 from .criteria import CAUTION
-
+from .errors import InputError
+from .output import key_values, text_table, to_csv, to_json
 
 
 @dataclass
@@ -26,12 +26,6 @@ class Loaded:
     openings: tuple
     density: float
     label: str
-
-
-def _vec(text: str, what: str) -> tuple[float, float, float]:
-    from .cli import _vec as v
-
-    return v(text, what)
 
 
 def _source_args(p: argparse.ArgumentParser, mesh_args: Callable, water_args: Callable) -> None:
@@ -48,7 +42,6 @@ def _source_args(p: argparse.ArgumentParser, mesh_args: Callable, water_args: Ca
 
 
 def _load_source(args: argparse.Namespace) -> Loaded:
-    from .cli import _density, _load
     from .loading import Opening, condition as make_condition, read_case
 
     if args.source.lower().endswith(".toml"):
@@ -72,13 +65,8 @@ def _load_source(args: argparse.Namespace) -> Loaded:
                 raise InputError(f"--opening {spec!r} is not NAME=X,Y,Z")
             name, xyz = spec.split("=", 1)
             ops.append(Opening(name.strip(), _vec(xyz, f"--opening {name}")))
-        ops = tuple(ops)
         label = f"{os.path.basename(args.source)}: Δ {cond.displacement:g} t"
     return Loaded(hull, cond, tuple(ops), rho, label)
-
-
-def _emit(args: argparse.Namespace, text: str) -> None:
-    emit(getattr(args, "out", None), text)
 
 
 def _condition_text(cond: Any) -> str:
@@ -151,11 +139,9 @@ def _heels(args: argparse.Namespace, hull: Any, cond: Any) -> tuple[np.ndarray, 
 
 
 def _curve(args: argparse.Namespace, src: Loaded):
-    from .progress import Progress
-
     hs, sides = _heels(args, src.hull, src.condition)
     c = src.condition
-    bar = Progress(len(hs), "righting curve", enabled=None if not args.quiet else False)
+    bar = _progress(args, len(hs), "righting curve")
     curve = src.hull.righting_curve(c.displacement, c.cog, heels=hs, free_trim=not args.fixed_trim,
                                     density=src.density, fsm=c.fsm, openings=src.openings, progress=bar)
     bar.close()
@@ -224,9 +210,7 @@ def cmd_righting(args: argparse.Namespace) -> int:
 
 
 def cmd_cross(args: argparse.Namespace) -> int:
-    from .cli import _density, _load
     from .hydrostatics import parse_range
-    from .progress import Progress
     from .stability import cross_curves
 
     if args.source.lower().endswith(".toml"):
@@ -240,7 +224,7 @@ def cmd_cross(args: argparse.Namespace) -> int:
         rho = _density(args)
     ds = parse_range(args.displacements, "--displacements")
     hs = parse_range(args.heels, "--heels")
-    bar = Progress(len(ds) * len(hs), "cross curves", enabled=None if not args.quiet else False)
+    bar = _progress(args, len(ds) * len(hs), "cross curves")
     cc = cross_curves(hull, ds, hs, density=rho, lcg=args.lcg, progress=bar)
     bar.close()
     if args.plot:

@@ -10,9 +10,9 @@ from .errors import InputError
 
 
 def cmd_sweep(args: argparse.Namespace) -> int:
+    from .cli import _progress
     from .cli_stability import _load_source
     from .hydrostatics import parse_range
-    from .progress import Progress
     from .sweep import heel_trace, parse_size, write_sweep
 
     size = parse_size(args.size)
@@ -21,12 +21,12 @@ def cmd_sweep(args: argparse.Namespace) -> int:
         raise InputError("--heels must lie within -180..180°")
     src = _load_source(args)
     c = src.condition
-    bar = Progress(len(heels), "solving", enabled=None if not args.quiet else False)
+    bar = _progress(args, len(heels), "solving")
     tr = heel_trace(src.hull, c.displacement, c.cog, heels, density=src.density, fsm=c.fsm, label=src.label,
                     progress=bar)
     bar.close()
     n_frames = len(tr.heel) if args.view in ("3d", "both") else 0
-    bar = Progress(max(n_frames, 1), "rendering", enabled=None if not args.quiet else False)
+    bar = _progress(args, max(n_frames, 1), "rendering")
     timings: dict[str, float] = {}
     written = write_sweep(src.hull, tr, args.out, view=args.view, size=size, sheet=args.sheet, gif=args.gif,
                           camera=args.camera, progress=bar, timings=timings)

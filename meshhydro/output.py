@@ -6,6 +6,7 @@ import io
 import json
 import math
 import os
+import sys
 import tempfile
 from typing import Any, Callable, Iterable, Sequence
 
@@ -36,8 +37,6 @@ def write_atomic(path: str, data: str | bytes) -> None:
 
 def emit(path: str | None, text: str) -> None:
     """Write ``text`` atomically to ``path`` (and say so on stderr), or to stdout when no path."""
-    import sys
-
     if path:
         write_atomic(path, text)
         print(f"wrote {path}", file=sys.stderr)
