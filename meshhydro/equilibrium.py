@@ -27,6 +27,7 @@ from . import kernel
 from .errors import CannotFloatError, InputError, NotConvergedError, OpenRimError
 from .frames import SEA_WATER, longitudinal_direction, transverse_direction, up_derivatives, up_vector
 from .hydrostatics import Hydrostatics, check_density
+from .loading import virtual_cog
 
 VOLUME_TOL = 1e-10  # relative
 LEVER_TOL = 1e-8  # times the hull length
@@ -55,6 +56,8 @@ class Evaluator:
         self.K = np.array([hull.x_ref, 0.0, 0.0])
         self.count = 0
         self.L = max(hull.length, 1e-9)
+        #: hull vertices relative to K (n, 3) [m], for the extent of the hull along a normal
+        self.rel = self.prep.vertices + (self.prep.origin - self.K)
 
     def state(self, s: float, heel: float, trim: float) -> State:
         n = up_vector(heel, trim)
@@ -63,8 +66,7 @@ class Evaluator:
         return State(float(s), float(heel), float(trim), c)
 
     def s_range(self, heel: float, trim: float) -> tuple[float, float]:
-        n = up_vector(heel, trim)
-        h = (self.prep.vertices + self.prep.origin - self.K) @ n
+        h = self.rel @ up_vector(heel, trim)
         return float(h.min()), float(h.max())
 
 
@@ -352,7 +354,7 @@ def solve(hull: Any, *, displacement: float, cog: np.ndarray, density: float = S
     """
     rho, v0 = _check_load(hull, displacement, density)
     g_solid = np.asarray(cog, dtype=float)
-    g = g_solid + np.array([0.0, 0.0, float(fsm) / float(displacement)])
+    g = virtual_cog(g_solid, fsm, displacement)
     ev = Evaluator(hull)
     st = solve_volume(ev, v0, start_heel, start_trim)
     res = newton(ev, v0, g, st, free_heel=True, free_trim=True)
@@ -369,7 +371,7 @@ def solve(hull: Any, *, displacement: float, cog: np.ndarray, density: float = S
         # unstable in roll: look for the angle of loll on either side with the free-trim curve
         from .stability import find_loll
 
-        st2, iters = find_loll(ev, v0, g, st)
+        st2 = find_loll(ev, v0, g, st)
         if st2 is None:
             raise NotConvergedError("upright GM is negative and no stable heeled position was found: the vessel capsizes")
         st = st2

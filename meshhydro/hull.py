@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import math
+from functools import cached_property
 from typing import Any, Sequence
 
 import numpy as np
@@ -54,7 +55,6 @@ class Hull:
         self._prep = kernel.prepare(self.vertices, self.faces, rim_vertices=rim_vertices)
         #: volume [m³] and centroid (3,) of the whole mesh; meaningful only when the mesh is closed
         self.total_volume, self.total_centroid = kernel.total_volume(self._prep)
-        self._symmetric: bool | None = None
 
     def _rim_vertices(self) -> np.ndarray:
         if self.report.closed:
@@ -85,17 +85,21 @@ class Hull:
     def size(self) -> float:
         return float(max(self.length, self.breadth, self.depth))
 
-    @property
+    @cached_property
     def is_symmetric(self) -> bool:
         """True when the mesh is its own mirror image in y (to 1e-6 of its size)."""
-        if self._symmetric is None:
-            from scipy.spatial import cKDTree
+        from scipy.spatial import cKDTree
 
-            v = self.vertices
-            mirrored = v * np.array([1.0, -1.0, 1.0])
-            d, _ = cKDTree(v).query(mirrored, k=1)
-            self._symmetric = bool(np.max(d) <= 1e-6 * max(self.size, 1e-9))
-        return self._symmetric
+        v = self.vertices
+        d, _ = cKDTree(v).query(v * np.array([1.0, -1.0, 1.0]), k=1)
+        return bool(np.max(d) <= 1e-6 * max(self.size, 1e-9))
+
+    @cached_property
+    def deck_edge(self) -> np.ndarray:
+        """Deck-edge vertices (k, 3) [m]: see :func:`meshhydro.stability.deck_edge_points`."""
+        from .stability import deck_edge_points
+
+        return deck_edge_points(self)
 
     @property
     def prepared(self) -> kernel.Prepared:

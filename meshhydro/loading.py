@@ -47,6 +47,11 @@ from .errors import InputError
 from .frames import SEA_WATER
 
 
+def virtual_cog(cog: Any, fsm: float, displacement: float) -> np.ndarray:
+    """G (3,) [m] raised along the hull z axis by the free-surface correction FSM / Δ (virtual rise)."""
+    return np.asarray(cog, dtype=float) + np.array([0.0, 0.0, float(fsm) / float(displacement)])
+
+
 @dataclass(frozen=True)
 class MassItem:
     """A named mass [t] at ``at`` (3,) [m, hull frame], with free-surface moment ``fsm`` [t·m]."""
@@ -85,7 +90,7 @@ class Condition:
 
     @property
     def cog_fluid(self) -> np.ndarray:
-        return np.array([self.cog[0], self.cog[1], self.kg_fluid])
+        return virtual_cog(self.cog, self.fsm, self.displacement)
 
     def to_dict(self) -> dict[str, Any]:
         return {

@@ -22,12 +22,16 @@ import numpy as np
 
 from .equilibrium import (
     Evaluator,
+    NewtonResult,
     State,
     _check_load,
+    _converged,
+    metacentric_heights,
     newton,
     residuals,
     solve_volume,
 )
+from .loading import virtual_cog
 from .errors import InputError, NotConvergedError, OpenRimError
 from .frames import SEA_WATER, transverse_direction
 
@@ -317,8 +321,6 @@ def _bracketed_trim(ev: Evaluator, v0: float, g: np.ndarray, heel: float, t0: fl
     solved exactly for each trial trim (continuous in trim, so a bracket converges)."""
     from scipy.optimize import brentq
 
-    from .equilibrium import NewtonResult
-
     cache: dict[float, State] = {}
 
     def lever(t: float) -> float:
@@ -327,8 +329,6 @@ def _bracketed_trim(ev: Evaluator, v0: float, g: np.ndarray, heel: float, t0: fl
         return float(residuals(st, v0, g, ev.L)[2])
 
     f0 = lever(t0)
-    lo = hi = t0
-    flo = fhi = f0
     step = 1.0
     bracket = None
     while step <= 64.0:
@@ -349,8 +349,7 @@ def _bracketed_trim(ev: Evaluator, v0: float, g: np.ndarray, heel: float, t0: fl
     res = newton(ev, v0, g, st, free_heel=False, free_trim=True, max_iter=6)
     if not res.converged:
         r = residuals(st, v0, g, ev.L)
-        ok = abs(r[0]) <= 1e-10 and abs(r[2]) <= 1e-8
-        return NewtonResult(st, bool(ok), 0, r)
+        return NewtonResult(st, _converged(r, [0, 2]), 0, r)
     return res
 
 
@@ -377,7 +376,7 @@ def righting_curve(hull: Any, *, displacement: float, cog: np.ndarray, heels: Se
         Called once per solved angle.
     """
     rho, v0 = _check_load(hull, displacement, density)
-    g = np.asarray(cog, dtype=float) + np.array([0.0, 0.0, float(fsm) / float(displacement)])
+    g = virtual_cog(cog, fsm, displacement)
     hs = np.arange(0.0, 181.0, 1.0) if heels is None else np.asarray(sorted(set(float(h) for h in heels)))
     if len(hs) == 0 or not np.all(np.isfinite(hs)) or np.any(np.abs(hs) > 180.0 + 1e-9):
         raise InputError("heels must be finite angles within -180..180°")
@@ -403,16 +402,13 @@ def righting_curve(hull: Any, *, displacement: float, cog: np.ndarray, heels: Se
     evals = np.array([solved[float(h)][1] for h in hs])
     gz = np.array([(g - s.cut.centroid) @ transverse_direction(s.heel) for s in states])
     kn = np.array([-(s.cut.centroid @ transverse_direction(s.heel)) for s in states])
-    deck = deck_edge_points(hull)
+    deck = hull.deck_edge
     deck_fb = np.array([_freeboard(s, ev.K, deck).min() for s in states]) if len(deck) else None
     ops = {}
     for o in openings:
         pt = np.asarray(o.at, float)[None, :]
         ops[o.name] = np.array([_freeboard(s, ev.K, pt)[0] for s in states])
-    gm_up = None
-    if abs(k0) < 1e-12:
-        c = up0.cut
-        gm_up = float(c.inertia_t / c.volume + (c.centroid - g) @ c.normal)
+    gm_up = float(metacentric_heights(up0, g)[0]) if abs(k0) < 1e-12 else None
     return RightingCurve(
         heel=hs, gz=gz, kn=kn, draft=np.array([s.s for s in states]), trim=np.array([s.trim for s in states]),
         cob=np.array([s.cut.centroid for s in states]), up=np.array([s.cut.normal for s in states]),
@@ -424,7 +420,7 @@ def righting_curve(hull: Any, *, displacement: float, cog: np.ndarray, heels: Se
     )
 
 
-def find_loll(ev: Evaluator, v0: float, g: np.ndarray, upright: State) -> tuple[State | None, int]:
+def find_loll(ev: Evaluator, v0: float, g: np.ndarray, upright: State) -> State | None:
     """From an unstable upright position, the nearest stable heeled equilibrium (either side)."""
     best = None
     for sign in (1.0, -1.0):
@@ -439,7 +435,7 @@ def find_loll(ev: Evaluator, v0: float, g: np.ndarray, upright: State) -> tuple[
                 break
             prev = (st, gz)
     # a symmetric load lolls equally both ways: the starboard (positive) angle is kept on ties (1e-6°)
-    return best, 0
+    return best
 
 
 @dataclass(frozen=True, eq=False)
@@ -458,15 +454,13 @@ def cross_curves(hull: Any, displacements: Sequence[float], heels: Sequence[floa
     """KN curves with free trim. G is taken at K height on the centreline (KG = 0, TCG = 0)
     and, unless ``lcg`` is given, at the LCB of the level upright flotation of each
     displacement, so that the vessel floats without trim when upright."""
-    from .equilibrium import Evaluator as _E
-
     ds = np.asarray(displacements, float)
     hs = np.asarray(sorted(set(float(h) for h in heels)))
     kn = np.zeros((len(ds), len(hs)))
     lcgs = np.zeros(len(ds))
     for i, d in enumerate(ds):
         rho, v0 = _check_load(hull, d, density)
-        ev = _E(hull)
+        ev = Evaluator(hull)
         x = lcg
         if x is None:
             x = float(solve_volume(ev, v0, 0.0, 0.0).cut.centroid[0])
