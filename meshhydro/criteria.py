@@ -33,7 +33,6 @@ from __future__ import annotations
 
 import math
 import os
-import tomllib
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -107,13 +106,9 @@ def read_criteria(path: str) -> CriteriaSet:
     """Read a user criteria set (TOML); errors name the file and the criterion."""
     if path in BUILTIN:
         return BUILTIN[path]
-    if not os.path.exists(path):
-        raise InputError(f"{path}: no such criteria file (built-in sets: {', '.join(BUILTIN)})")
-    try:
-        with open(path, "rb") as fh:
-            data = tomllib.load(fh)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{path}: not valid TOML ({exc})") from None
+    from .loading import read_toml
+
+    data = read_toml(path, f"no such criteria file (built-in sets: {', '.join(BUILTIN)})")
     items = []
     for k, c in enumerate(data.get("criterion", [])):
         where = f"{path}: criterion {k + 1}"

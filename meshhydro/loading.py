@@ -188,15 +188,20 @@ class Case:
         return load_hull(self.mesh, units=self.units, forward=self.forward, up=self.up, offset=self.offset)
 
 
-def read_case(path: str) -> Case:
-    """Read and validate a case file; errors name the file and the key."""
+def read_toml(path: str, missing: str = "no such file") -> dict[str, Any]:
+    """Parse a TOML file; a missing or malformed file is an :class:`InputError` naming it."""
     if not os.path.exists(path):
-        raise InputError(f"{path}: no such file")
+        raise InputError(f"{path}: {missing}")
     try:
         with open(path, "rb") as fh:
-            data = tomllib.load(fh)
+            return tomllib.load(fh)
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"{path}: not valid TOML ({exc})") from None
+
+
+def read_case(path: str) -> Case:
+    """Read and validate a case file; errors name the file and the key."""
+    data = read_toml(path)
     hull = data.get("hull")
     if not isinstance(hull, dict) or "mesh" not in hull:
         raise InputError(f"{path}: needs a [hull] table with mesh = \"file\"")
