@@ -37,6 +37,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from .errors import InputError
+from .loading import read_toml
 
 #: The caution that every output a safety decision could rest on carries.
 CAUTION = ("CAUTION: a design aid, not an approval. The flag administration, class rules, local codes and a "
@@ -106,8 +107,6 @@ def read_criteria(path: str) -> CriteriaSet:
     """Read a user criteria set (TOML); errors name the file and the criterion."""
     if path in BUILTIN:
         return BUILTIN[path]
-    from .loading import read_toml
-
     data = read_toml(path, f"no such criteria file (built-in sets: {', '.join(BUILTIN)})")
     items = []
     for k, c in enumerate(data.get("criterion", [])):

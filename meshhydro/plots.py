@@ -117,16 +117,12 @@ def cross_curves(cc: Any, path: str, *, title: str = "") -> None:
 
 def largest_section(hull: Any, n: int = 41) -> tuple[float, np.ndarray]:
     """x [m] and outline segments (k, 2, 3) of the transverse section of largest area."""
-    from . import kernel
+    from .sections import section_segments, sectional_areas
 
-    prep = hull.prepared
-    lo, hi = hull.bounds[0][0], hull.bounds[1][0]
-    xs = np.linspace(lo, hi, n + 2)[1:-1]
-    top = np.array([0.0, 0.0, hull.bounds[1][2] + hull.size])
-    areas = [kernel.section_area(prep, x, top, np.array([0.0, 0.0, 1.0]))[0] for x in xs]
+    xs = np.linspace(hull.bounds[0][0], hull.bounds[1][0], n + 2)[1:-1]
+    areas = sectional_areas(hull, xs, hull.bounds[1][2] + hull.size)  # whole sections: water above all
     xb = float(xs[int(np.argmax(areas))])
-    cl = kernel.clip(prep, np.array([1.0, 0.0, 0.0]), xb - prep.origin[0])
-    return xb, cl.seg + prep.origin
+    return xb, section_segments(hull, xb)
 
 
 def section_view(hull: Any, traces: Sequence[Any], path: str, *, size: tuple[int, int] = (960, 720),

@@ -63,14 +63,12 @@ class Scene:
         self.trace = trace
         self.K = np.array([hull.x_ref, 0.0, 0.0])
         faces = np.hstack([np.full((len(hull.faces), 1), 3), hull.faces]).ravel()
-        self.base = pv.PolyData(hull.vertices - self.K, faces)
-        self.radius = float(np.max(np.linalg.norm(hull.vertices - self.K, axis=1)))
+        self.base = pv.PolyData(hull.vertices.copy(), faces)
         self.plotter = pv.Plotter(off_screen=True, window_size=list(size))
         self.plotter.set_background(COLOURS["background"])
         self.size = size
         self.camera = camera
-        xc = float(0.5 * (hull.bounds[0][0] + hull.bounds[1][0]) - self.K[0])
-        self.xc = xc
+        self.xc = float(0.5 * (hull.bounds[0][0] + hull.bounds[1][0]) - self.K[0])
         rel = hull.vertices - self.K
         #: largest distance of the hull from the heel axis: the frame holds it at every angle
         self.r_axis = float(np.max(np.hypot(rel[:, 1], rel[:, 2])))
@@ -82,6 +80,10 @@ class Scene:
         boxes = [self._to_earth(k, sample) for k in range(len(trace.heel))]
         allp = np.concatenate(boxes)
         self.lo, self.hi = allp.min(axis=0), allp.max(axis=0)
+        # the water sheet is the same in every frame (earth frame, z = 0)
+        sheet = pv.Plane(center=(self.xc, 0.0, 0.0), direction=(0, 0, 1), i_size=1.1 * hull.length,
+                         j_size=4 * self.r_axis, i_resolution=1, j_resolution=1)
+        self.plotter.add_mesh(sheet, color=COLOURS["water"], opacity=0.38, name="water", render=False)
         self._camera_set = False
 
     def _to_earth(self, k: int, pts: np.ndarray) -> np.ndarray:
@@ -114,9 +116,8 @@ class Scene:
         pv = self.pv
         p = self.plotter
         t = self.trace
-        R = hull_to_earth(t.heel[k], t.trim[k])
         mesh = self.base.copy()
-        mesh.points = np.asarray(self.base.points) @ R.T - np.array([0.0, 0.0, t.draft[k]])
+        mesh.points = self._to_earth(k, self.hull.vertices)
         below = mesh.clip(normal=(0, 0, 1), origin=(0, 0, 0), invert=True)
         above = mesh.clip(normal=(0, 0, 1), origin=(0, 0, 0), invert=False)
         alpha = 1.0 if self.camera == "astern" else 0.72
@@ -130,14 +131,10 @@ class Scene:
                        opacity=alpha)
         else:
             p.remove_actor("above", render=False)
-        r = self.radius
-        sheet = pv.Plane(center=(self.xc, 0.0, 0.0), direction=(0, 0, 1), i_size=1.1 * self.hull.length,
-                         j_size=4 * self.r_axis, i_resolution=1, j_resolution=1)
-        p.add_mesh(sheet, color=COLOURS["water"], opacity=0.38, name="water", render=False)
         cut = self.hull.cut(self.K + t.draft[k] * t.up[k], t.up[k], segments=True)
         if cut.segments is not None and len(cut.segments):
             seg = self._to_earth(k, cut.segments.reshape(-1, 3))
-            seg[:, 2] += 1e-4 * r  # keep the line above the sheet
+            seg[:, 2] += 1e-4 * self.r_axis  # keep the line above the sheet
             n = len(seg) // 2
             lines = np.hstack([np.full((n, 1), 2), np.arange(2 * n).reshape(n, 2)]).ravel()
             p.add_mesh(pv.PolyData(seg, lines=lines), color=COLOURS["waterline"], line_width=3, name="waterline", render=False)
