@@ -37,8 +37,8 @@ def cmd_sections(args: argparse.Namespace) -> int:
         sh = S.section_hydrostatics(off, rule=args.rule, density=rho, upto=[float(t)])
         notes.update(n for n in sh.notes if n.startswith("longitudinal") or f"{float(t):g} m" in n)
         comparison += S.compare_rows([ex], sh.rows, scale=hull.length)
-    areas = {f"{t:g}": S.sectional_areas(hull, xs, float(t)).tolist() for t in drafts}
     bj = S.bonjean(hull, xs, drafts)
+    areas = {f"{t:g}": bj.area[:, j].tolist() for j, t in enumerate(drafts)}  # the sectional area curves
     conv = S.convergence(hull, float(drafts[-1]), waterlines=args.waterlines, density=rho)
     if args.export:
         off_all = S.offsets_from_mesh(hull, xs, np.linspace(lo[2], hi[2], args.waterlines + 1))

@@ -390,12 +390,8 @@ def loft_offsets(off: Offsets) -> tuple[np.ndarray, np.ndarray]:
             yv = off.half_breadth[i, j] if zk <= z <= zt else (yk if z < zk else yt)
             pts.append((yv, zc))
         pts += [(yt, zt), (0.0, zt)]
-        h = np.array(pts, float)
-        # keep the ring free of back-and-forth: drop interior points equal to their predecessor
-        halves.append(h)
-    halves = np.array(halves)
-    v, f = loft(xs, halves)
-    return v, f
+        halves.append(pts)
+    return loft(xs, np.array(halves, float))
 
 
 # ----------------------------------------------------------------------------- comparison
