@@ -435,6 +435,41 @@ def sounding_volume(tank: Tank, sounding: float, up: Any) -> float:
 
 # --------------------------------------------------------------------------- the fluid load
 
+@dataclass(frozen=True)
+class _Warm:
+    """Warm start of one tank's level: the last surface centroid, its normal and the last correction.
+
+    Tilting a level surface about its own centroid keeps the volume to first order, so
+    the plane with the new normal through the last surface centroid is a first-order
+    guess; its error grows with the square of the tilt, so the last correction along
+    the normal, scaled by the squared ratio of the tilts, is added (capped).
+    """
+
+    point: np.ndarray
+    normal: np.ndarray
+    shift: float
+    tilt: float
+
+    def guess(self, n: np.ndarray) -> np.ndarray:
+        tilt = _angle(self.normal, n)
+        if self.tilt > 0.0 and tilt > 0.0:
+            k = min((tilt / self.tilt) ** 2, 4.0)
+            return self.point + k * self.shift * n
+        return self.point
+
+    @staticmethod
+    def after(prev: "_Warm | None", st: TankState) -> "_Warm":
+        if prev is None:
+            return _Warm(st.level_point, st.normal, 0.0, 0.0)
+        shift = float(st.normal @ (st.level_point - prev.point))
+        return _Warm(st.level_point, st.normal, shift, _angle(prev.normal, st.normal))
+
+
+def _angle(a: np.ndarray, b: np.ndarray) -> float:
+    """Angle [rad] between unit vectors (3,), exact for small angles."""
+    return float(2.0 * math.atan2(np.linalg.norm(a - b), np.linalg.norm(a + b)))
+
+
 class FluidLoad:
     """The fluid of several tanks with fixed volumes: a load whose centre moves with attitude.
 
@@ -459,7 +494,7 @@ class FluidLoad:
         self.tanks = tuple(tanks)
         self.volumes = tuple(t.volume_for(volume=v) for t, v in zip(tanks, volumes))
         self.cuts = 0
-        self._guess: list[np.ndarray | None] = [None] * len(self.tanks)
+        self._warm: list[_Warm | None] = [None] * len(self.tanks)
         self._upright: list[TankState] | None = None
 
     @classmethod
@@ -481,8 +516,10 @@ class FluidLoad:
         n = _unit(up)
         out = []
         for i, (t, v) in enumerate(zip(self.tanks, self.volumes)):
-            st = tank_state(t, n, v, guess=self._guess[i])
-            self._guess[i] = st.level_point if st.cuts else self._guess[i]
+            w = self._warm[i]
+            st = tank_state(t, n, v, guess=None if w is None else w.guess(n))
+            if st.cuts:
+                self._warm[i] = _Warm.after(w, st)
             self.cuts += st.cuts
             out.append(st)
         return out
