@@ -134,3 +134,40 @@ def test_bad_compartments(box_hull):
         check_inside(outside.name, outside.vertices, outside.faces, box_hull, kind="compartment")
     assert compartment_from_mesh("m", trimesh.creation.box(extents=(1, 1, 1)), permeability=0.5).volume == \
         pytest.approx(1.0, rel=1e-12)
+
+
+# textbook lost buoyancy with the wall-sided formula (REFERENCES.md: Barrass & Derrett; Rawson & Tupper):
+# a bilged full-depth side compartment leaves a wall-sided net body whose waterplane is the intact one;
+# B moves off the centreline by y_B1, and heeling about the intact waterplane's centroid moves B by
+# BM tan φ across and ½ BM tan² φ up, so the list solves tan φ (GM + ½ BM tan² φ) = y_B1 exactly,
+# with GM = KB1 + I_F / V - KG. The upright box and the equilibrium are found here by bracketed solves
+# (scipy brentq) on flooded_cut, not by the project's solver.
+def test_bilged_side_compartment_list(box_hull):
+    T0, kg = 1.5, 1.2
+    ell, b, yc = 4.0, 1.0, -2.5
+    comp = compartment_from_box("starboard wing", [[8.0, -3.0, 0.0], [12.0, -2.0, 4.0]], permeability=1.0)
+    v0 = L * B * T0
+
+    def net(t, heel):
+        return flooded_cut(box_hull.cut((10.0, 0.0, t), up_vector(heel, 0.0)), [comp])
+
+    def gz(heel):
+        t = brentq(lambda z: net(z, heel).volume - v0, 0.5, 3.5, xtol=1e-14, rtol=1e-15)
+        c = net(t, heel)
+        return float((np.array([10.0, 0.0, kg]) - c.centroid) @ np.array([0.0, np.cos(np.radians(heel)),
+                                                                          -np.sin(np.radians(heel))]))
+
+    heel = brentq(gz, 0.01, 15.0, xtol=1e-12, rtol=1e-15)
+    # closed form
+    a_int = L * B - ell * b
+    t1 = v0 / a_int
+    y_b1 = -(ell * b * t1 * yc) / v0
+    yf = -ell * b * yc / a_int
+    i_f = L * B**3 / 12 + L * B * yf**2 - (ell * b**3 / 12 + ell * b * (yc - yf) ** 2)
+    bm = i_f / v0
+    gm = t1 / 2 + bm - kg
+    tan_phi = brentq(lambda x: x * (gm + 0.5 * bm * x * x) - y_b1, 0.0, 1.0, xtol=1e-16)
+    assert heel > 0  # lists to the damaged (starboard) side
+    assert np.tan(np.radians(heel)) == pytest.approx(tan_phi, rel=1e-9)
+    # the small-angle textbook list tan φ = y_B1 / GM is within its own approximation (½ BM tan² φ / GM)
+    assert np.tan(np.radians(heel)) == pytest.approx(y_b1 / gm, rel=0.5 * bm * tan_phi**2 / gm * 1.5)
