@@ -13,7 +13,8 @@ import numpy as np
 
 from .errors import InputError
 from .frames import up_vector
-from .tanks import FluidLoad, Tank, sounding_cut
+from .fluid import FluidLoad
+from .tanks import Tank, sounding_cut
 
 #: Units of the calibration table's columns.
 CALIBRATION_UNITS: dict[str, str] = {

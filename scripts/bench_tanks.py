@@ -23,7 +23,8 @@ import trimesh  # noqa: E402
 
 from meshhydro import kernel  # noqa: E402
 from meshhydro.frames import up_vector  # noqa: E402
-from meshhydro.tanks import FluidLoad, make_tank, tank_from_box  # noqa: E402
+from meshhydro.fluid import FluidLoad  # noqa: E402
+from meshhydro.tanks import make_tank, tank_from_box  # noqa: E402
 
 FILLS = [0.15, 0.3, 0.45, 0.6, 0.75, 0.9]
 

@@ -20,8 +20,8 @@ from meshhydro.forms import box
 from meshhydro.frames import transverse_direction, up_vector
 from meshhydro.mesh import check_mesh
 from meshhydro.tank_tables import calibration_table, sounding_steps, weight_groups
+from meshhydro.fluid import FluidLoad
 from meshhydro.tanks import (
-    FluidLoad,
     check_inside,
     tank_from_body,
     tank_from_box,
