@@ -264,3 +264,13 @@ def test_bad_tanks():
     two = trimesh.Trimesh(np.vstack([v, v + 3.0]), np.vstack([f, f + 8]), process=False)
     with pytest.raises(InvalidMeshError, match="2 bodies"):
         tank_from_mesh("two", two, density=1.0)
+
+
+# closed-form geometry, degenerate level: a half-full cube at 45° heel has its surface exactly on two
+# opposite edges; the fluid is a triangular prism with centroid at a third of the legs
+def test_level_through_edges_is_exact():
+    t = tank_from_box("cube", [[0.0, -1.0, 0.0], [2.0, 1.0, 2.0]], density=1.0)
+    st = tank_state(t, up_vector(45.0, 0.0), 4.0)
+    assert np.allclose(st.centroid, [1.0, -1.0 / 3.0, 1.0 - 1.0 / 3.0], atol=1e-12)
+    assert st.free_surface_area == pytest.approx(2.0 * 2.0 * math.sqrt(2.0), rel=1e-12)
+    assert st.i_t == pytest.approx(2.0 * (2.0 * math.sqrt(2.0)) ** 3 / 12, rel=1e-12)
