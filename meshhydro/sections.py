@@ -216,12 +216,17 @@ def _intervals(seg: np.ndarray, z: float) -> np.ndarray:
     return np.array(merged, float)
 
 
-def _half_breadths(b: _Body, x: float, zs: np.ndarray, tol: float, name: str) -> np.ndarray:
+#: default bound of the asymmetry measure (see :func:`half_breadths`)
+ASYMMETRY = 1e-4
+
+
+def _widths(b: _Body, x: float, zs: np.ndarray, what: str) -> tuple[np.ndarray, np.ndarray]:
+    """Half-widths (W,) [m] of body b's section at x on waterlines zs and the offsets (W,) [m] of
+    the sections' middles from the body's centreline (0 where there is no section)."""
     seg = _segments(b, x)
-    out = np.zeros(len(zs))
+    hw, mid = np.zeros(len(zs)), np.zeros(len(zs))
     if len(seg) == 0:
-        return out
-    what = f"{name}" + ("" if b.index is None else f", body {b.index}")
+        return hw, mid
     for j, z in enumerate(zs):
         try:
             iv = _intervals(seg, float(z))
@@ -236,40 +241,57 @@ def _half_breadths(b: _Body, x: float, zs: np.ndarray, tol: float, name: str) ->
                 + " m): a half-breadth would fill the gap between them; take the sections per body (a tunnel "
                   "between hulls joined by a deck cannot be tabulated as offsets)")
         a, c = iv[0]
-        off = 0.5 * (a + c) - b.centreline
-        if abs(off) > tol:
-            raise InputError(
-                f"{what} is not symmetric about its own centreline y = {b.centreline:.6g} m: at x = {x:g} m, "
-                f"z = {z:g} m its section spans y {a:.6g}..{c:.6g} m (middle off by {off:.3g} m, tolerance "
-                f"{tol:.3g} m); a half-breadth table cannot describe it")
-        out[j] = 0.5 * (c - a)
-    return out
+        hw[j], mid[j] = 0.5 * (c - a), 0.5 * (a + c) - b.centreline
+    return hw, mid
 
 
-def _tolerance(b: _Body, tolerance: float | None) -> float:
-    return 1e-3 * float(b.hi[1] - b.lo[1]) if tolerance is None else float(tolerance)
+def _check_symmetry(b: _Body, xs: np.ndarray, zs: np.ndarray, hw: np.ndarray, mid: np.ndarray,
+                    asymmetry: float, what: str) -> None:
+    """Refuse a table whose sections' middles stray from the centreline: the measure is
+    Σ w δ² / Σ w³/12 over the cells (w the width, δ the offset of its middle)."""
+    w = 2.0 * hw
+    own = float(np.sum(w ** 3)) / 12.0
+    miss = w * mid * mid
+    if own <= 0.0 or float(miss.sum()) <= asymmetry * own:
+        return
+    i, j = np.unravel_index(int(np.argmax(miss)), miss.shape)
+    y0 = b.centreline + mid[i, j] - hw[i, j]
+    raise InputError(
+        f"{what} is not symmetric about its own centreline y = {b.centreline:.6g} m: at x = {xs[i]:g} m, "
+        f"z = {zs[j]:g} m its section spans y {y0:.6g}..{y0 + w[i, j]:.6g} m (asymmetry measure "
+        f"{float(miss.sum()) / own:.3g} > {asymmetry:g}); a half-breadth table assumes a symmetric body "
+        f"(an asymmetric float would need port and starboard tables)")
 
 
 def half_breadths(hull: Any, x: float, zs: Sequence[float], *, body: int | None = None,
-                  tolerance: float | None = None) -> np.ndarray:
+                  asymmetry: float = ASYMMETRY) -> np.ndarray:
     """Half-breadths (W,) [m] of the section at x on waterlines zs, measured from the centreline
     of the whole hull (default) or of body number ``body``; 0 where the section has no breadth.
 
     The half-breadth is half the width of the section at that height, so sectional areas
     and their moments in x and z are those of the real section. It is refused (InputError)
     where the section at a height is in several parts (a tunnel between demihulls, a
-    hollow): a half-breadth would fill the gap. It is refused too where the middle of the
-    section lies further than ``tolerance`` [m] (default 1e-3 of the body's breadth) from
-    the centreline y = middle of the body's extent: the table assumes a body symmetric
-    about its own centreline. Heights exactly on a horizontal edge of the outline take the
-    breadth just above it (just below at the top of the section).
+    hollow): a half-breadth would fill the gap. The table assumes a body symmetric about
+    its own centreline y = middle of the body's extent; where a section's middle is off
+    it by δ, a strip of width w misses w δ² of the transverse second moment. The sections
+    are refused when Σ w δ² exceeds ``asymmetry`` (default 1e-4) times their own Σ w³/12,
+    summed over the table's cells: an asymmetric proa float is refused (port and starboard
+    would need tables of their own, which the format does not carry), while a symmetric
+    surface triangulated differently on its two sides (sections slightly off the middle
+    between mesh stations, part of the mesh's own discretisation) passes. Heights exactly
+    on a horizontal edge of the outline take the breadth just above it (just below at the
+    top of the section).
     """
     b = _bodies(hull, body, split=body is not None)[0]
-    return _half_breadths(b, float(x), np.asarray(zs, float), _tolerance(b, tolerance), str(hull.name))
+    what = f"{hull.name}" + ("" if b.index is None else f", body {b.index}")
+    zs = np.asarray(zs, float)
+    hw, mid = _widths(b, float(x), zs, what)
+    _check_symmetry(b, np.array([float(x)]), zs, hw[None, :], mid[None, :], asymmetry, what)
+    return hw
 
 
 def offsets_from_mesh(hull: Any, stations: int | Sequence[float], waterlines: int | Sequence[float], *,
-                      body: int | None = None, tolerance: float | None = None) -> Offsets | MultiOffsets:
+                      body: int | None = None, asymmetry: float = ASYMMETRY) -> Offsets | MultiOffsets:
     """Half-breadth tables of a mesh, one per body, each about the body's own centreline.
 
     An integer ``stations`` gives that many equally spaced intervals over each body's own
@@ -277,7 +299,7 @@ def offsets_from_mesh(hull: Any, stations: int | Sequence[float], waterlines: in
     to the highest point of the whole hull, the same for every body. Arrays are used as
     given for every body. A hull of one body (or ``body`` given) gives an :class:`Offsets`;
     several bodies give a :class:`MultiOffsets`. Sections in several parts or bodies not
-    symmetric about their centreline are refused (see :func:`half_breadths`).
+    symmetric about their centreline (``asymmetry``) are refused (see :func:`half_breadths`).
     """
     lo, hi = hull.bounds
     zs = np.linspace(lo[2], hi[2], int(waterlines) + 1) if np.isscalar(waterlines) else np.asarray(waterlines, float)
@@ -285,8 +307,10 @@ def offsets_from_mesh(hull: Any, stations: int | Sequence[float], waterlines: in
     for b in _bodies(hull, body):
         xs = np.linspace(b.lo[0], b.hi[0], int(stations) + 1) if np.isscalar(stations) \
             else np.asarray(stations, float)
-        tol = _tolerance(b, tolerance)
-        hb = np.array([_half_breadths(b, float(x), zs, tol, str(hull.name)) for x in xs])
+        what = f"{hull.name}" + ("" if b.index is None else f", body {b.index}")
+        cells = [_widths(b, float(x), zs, what) for x in xs]
+        hb, mid = np.array([c[0] for c in cells]), np.array([c[1] for c in cells])
+        _check_symmetry(b, xs, zs, hb, mid, asymmetry, what)
         tables.append(Offsets(xs, zs, hb, source=str(hull.name), centreline=b.centreline, body=b.index))
     return tables[0] if len(tables) == 1 else MultiOffsets(tuple(tables), str(hull.name))
 
@@ -446,14 +470,52 @@ def section_hydrostatics(off: Offsets | MultiOffsets, *, rule: str = "simpson", 
 # ----------------------------------------------------------------------------- lofting
 
 
+def _extent(off: Offsets, i: int) -> tuple[float, float, float, float]:
+    """Keel height, keel half-breadth, sheer height, sheer half-breadth [m] of station i.
+
+    From the keel and sheer rows when given; otherwise the section spans the waterlines
+    with breadth plus the zero waterline just below and just above them (a flat bottom or
+    deck where the lowest or highest waterline has breadth)."""
+    if off.keel is not None and off.sheer is not None:
+        return off.keel[i], off.keel_half[i], off.sheer[i], off.sheer_half[i]
+    zs, hb = off.waterlines, off.half_breadth[i]
+    pos = np.flatnonzero(hb > 0)
+    if len(pos):
+        j0, j1 = int(pos[0]), int(pos[-1])
+        if np.any(hb[j0:j1 + 1] == 0):
+            j = j0 + int(np.flatnonzero(hb[j0:j1 + 1] == 0)[0])
+            raise InputError(f"{off.source}: station_x {off.stations[i]:g}: half-breadth 0 at waterline_z "
+                             f"{zs[j]:g} between waterlines with breadth: a section in two parts cannot be lofted")
+        zk, yk = (zs[0], hb[0]) if j0 == 0 else (zs[j0 - 1], 0.0)
+        zt, yt = (zs[-1], hb[-1]) if j1 == len(zs) - 1 else (zs[j1 + 1], 0.0)
+    else:
+        zk, yk, zt, yt = zs[0], 0.0, zs[-1], 0.0
+    if off.keel is not None:
+        zk, yk = off.keel[i], off.keel_half[i]
+    if off.sheer is not None:
+        zt, yt = off.sheer[i], off.sheer_half[i]
+    return zk, yk, zt, yt
+
+
 def _loft_one(off: Offsets) -> tuple[np.ndarray, np.ndarray]:
     xs, zs = off.stations, off.waterlines
+    full = np.flatnonzero((off.half_breadth > 0).any(axis=1))
+    if len(full) == 0:
+        raise InputError(f"{off.source}: every half-breadth is 0: nothing to loft")
+    empty = np.flatnonzero(~(off.half_breadth > 0).any(axis=1))
+    inner = empty[(empty > full[0]) & (empty < full[-1])]
+    if len(inner) and off.keel is None:
+        raise InputError(f"{off.source}: station_x {xs[inner[0]]:g} has no breadth between stations with "
+                         f"breadth: two bodies need a body column")
+    # stations without breadth beyond the ends add nothing; keep the one next to each end (a stem line)
+    keep = np.arange(max(int(full[0]) - 1, 0), min(int(full[-1]) + 2, len(xs)))
+    ext = {int(i): _extent(off, int(i)) for i in full}
     halves = []
-    for i in range(len(xs)):
-        zk = off.keel[i] if off.keel is not None else zs[0]
-        yk = off.keel_half[i] if off.keel is not None else 0.0
-        zt = off.sheer[i] if off.sheer is not None else zs[-1]
-        yt = off.sheer_half[i] if off.sheer is not None else off.half_breadth[i, -1]
+    for i in keep:
+        near = int(full[0]) if i < full[0] else int(full[-1]) if i > full[-1] else int(i)
+        zk, yk, zt, yt = ext[near] if i not in ext else ext[int(i)]
+        if i not in ext:
+            yk = yt = 0.0
         pts = [(0.0, zk), (yk, zk)]
         for j, z in enumerate(zs):
             zc = min(max(z, zk), zt)
@@ -461,7 +523,7 @@ def _loft_one(off: Offsets) -> tuple[np.ndarray, np.ndarray]:
             pts.append((yv, zc))
         pts += [(yt, zt), (0.0, zt)]
         halves.append(pts)
-    v, f = loft(xs, np.array(halves, float))
+    v, f = loft(xs[keep], np.array(halves, float))
     return v + np.array([0.0, off.centreline, 0.0]), f
 
 
