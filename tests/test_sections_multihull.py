@@ -242,3 +242,12 @@ def test_file_encoding(tmp_path):
     assert read_offsets(str(q)).half_breadth.shape == (2, 2)
     with pytest.raises(InputError, match="no such file"):
         read_offsets(str(tmp_path / "none.csv"))
+
+
+def test_convergence_table_of_a_catamaran_compares_totals(box_cat):
+    from meshhydro.sections import convergence
+
+    # two boxes: every rule is exact for V, KB and BMt (constant ordinates; closed forms above)
+    for r in convergence(box_cat, 0.6, counts=(4, 5), waterlines=4):
+        for k in ("volume", "vcb", "bmt", "lcb"):
+            assert abs(r[f"{k}_error_percent"]) < 1e-9
