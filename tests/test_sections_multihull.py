@@ -8,7 +8,9 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+import shapely
 import trimesh
+from hypothesis import assume, given, settings, strategies as st
 
 from meshhydro import InputError, load_hull
 from meshhydro.forms import box, wigley, wigley_exact
@@ -251,3 +253,29 @@ def test_convergence_table_of_a_catamaran_compares_totals(box_cat):
     for r in convergence(box_cat, 0.6, counts=(4, 5), waterlines=4):
         for k in ("volume", "vcb", "bmt", "lcb"):
             assert abs(r[f"{k}_error_percent"]) < 1e-9
+
+
+@settings(max_examples=25, deadline=None)
+@given(r=st.lists(st.floats(0.3, 1.5), min_size=4, max_size=9), zf=st.lists(st.floats(0.01, 0.99), min_size=1,
+                                                                              max_size=6))
+def test_half_breadths_agree_with_shapely_or_refuse_a_split_section(r, zf):
+    # a prism whose section is a star-shaped polygon symmetric about y = 0 (radii mirrored), extruded
+    # along x; shapely (general-purpose geometry library) gives the section's extent at each height
+    th = np.linspace(-np.pi / 2, np.pi / 2, len(r))
+    rr = np.array(r)
+    half = np.stack([rr * np.cos(th), rr * np.sin(th) + 2.0], axis=1)[1:-1]
+    pts = np.concatenate([[[0.0, 2.0 - rr[0]]], half, [[0.0, 2.0 + rr[-1]]], (half * [-1, 1])[::-1]])
+    poly = shapely.Polygon(pts)
+    assume(poly.is_valid)
+    m = trimesh.creation.extrude_polygon(poly, 4.0)
+    v = np.asarray(m.vertices)[:, [2, 0, 1]]  # (X, Y, Z) -> hull (x = Z, y = X, z = Y): a rotation
+    hull = load_hull(tm(v, np.asarray(m.faces)))
+    zlo, zhi = poly.bounds[1], poly.bounds[3]
+    zs = [zlo + f * (zhi - zlo) for f in zf]
+    parts = [poly.intersection(shapely.LineString([(-9, z), (9, z)])) for z in zs]
+    n = [len(getattr(p, "geoms", [p])) for p in parts]
+    if max(n) > 1:
+        with pytest.raises(InputError, match="separate parts"):
+            half_breadths(hull, 2.0, zs)
+    else:
+        assert half_breadths(hull, 2.0, zs) == pytest.approx([p.length / 2 for p in parts], abs=1e-9)
