@@ -61,7 +61,6 @@ S_TABLE = ((6.0, 0.100), (7.0, 0.098), (8.0, 0.093), (12.0, 0.065), (14.0, 0.053
 #: k for sharp bilges.
 K_SHARP = 0.7
 BILGES = ("round", "sharp")
-LEVER_TO = ("underwater_centre", "half_draft")
 
 
 def table_value(table: tuple[tuple[float, float], ...], x: float) -> float:
@@ -184,11 +183,14 @@ class WeatherResult:
     notes: tuple[str, ...] = ()
     shade: dict[str, Any] = field(default_factory=dict)
 
-    def __getattr__(self, name: str) -> Any:
-        # roll factors by name: roll_period, X1, X2, k, s, r, OG
-        if name in ("roll_period", "X1", "X2", "k", "s", "r", "OG", "C"):
-            return getattr(self.roll, name)
-        raise AttributeError(name)
+    # the roll factors by name (from ``roll``)
+    roll_period = property(lambda self: self.roll.roll_period, doc="roll period T [s]")
+    X1 = property(lambda self: self.roll.X1, doc="factor X1 (B/d table)")
+    X2 = property(lambda self: self.roll.X2, doc="factor X2 (Cb table)")
+    k = property(lambda self: self.roll.k, doc="factor k (bilge keels / sharp bilge)")
+    s = property(lambda self: self.roll.s, doc="factor s (roll-period table)")
+    r = property(lambda self: self.roll.r, doc="r = 0.73 + 0.6·OG/d")
+    OG = property(lambda self: self.roll.OG, doc="OG = KG − d [m]")
 
     def to_dict(self) -> dict[str, Any]:
         """Plain values for renderers (which add the project's caution text)."""
@@ -259,3 +261,44 @@ def weather_criterion(gz: GZCurve, *, lw1: float, roll: RollAngle, windage_area:
                          theta_c=gust.second_intercept, area_a=a, area_b=b, passed=bool(passed),
                          margins={"2.3 heel": m_heel, "2.3 areas": m_area}, notes=tuple(notes),
                          shade={"a": gust.shade.get("before"), "b": gust.shade.get("residual")}, **base)
+
+
+def weather_for_condition(hull: Any, *, displacement: float, cog: Any, fsm: float = 0.0, density: float = 1.025,
+                          openings: Any = (), items: Any = (), bilge: str = "round", bilge_keel_area: float = 0.0,
+                          pressure: float = PRESSURE, lever_to: str = "underwater_centre", side: int = 1,
+                          step: float = 1.0) -> tuple[WeatherResult, Any]:
+    """The weather criterion for one loading condition of a loaded Hull, using the public API.
+
+    The wind blows from port (``side`` = +1, heel to starboard) or from starboard (−1).
+    A free-trim GZ curve is solved from −90° to 90° in ``step`` [deg]; the upright
+    free-trim waterline gives the windage (:func:`meshhydro.windage.windage`); the roll
+    factors use the upright hydrostatics (B = waterline breadth, d = draft at the
+    reference point, L = waterline length, Cb as in :mod:`meshhydro.hydrostatics`),
+    KG and GM corrected for free surface. Returns (WeatherResult, Windage).
+    """
+    from .windage import windage
+
+    if side not in (1, -1):
+        raise InputError(f"weather: side must be 1 (wind from port) or -1 (from starboard), got {side!r}")
+    n = int(round(90.0 / step))
+    if n < 1 or abs(n * step - 90.0) > 1e-9:
+        raise InputError(f"weather: step must divide 90°, got {step!r}")
+    heels = np.linspace(-90.0, 90.0, 2 * n + 1)
+    curve = hull.righting_curve(displacement, cog, heels=heels, density=density, fsm=fsm, openings=openings)
+    k0 = int(np.argmin(np.abs(curve.heel)))
+    trim = float(curve.trim[k0])
+    draft = float(curve.draft[k0]) / math.cos(math.radians(trim))
+    w = windage(hull.vertices, hull.faces, draft=draft, trim=trim, x_ref=hull.x_ref, items=items,
+                lever_to=lever_to)
+    hs = hull.hydrostatics(draft, trim=trim, density=density)
+    kg = float(curve.cog[2])
+    gm = curve.gm_upright if curve.gm_upright is not None else curve.gm_from_slope()
+    roll = roll_angle(breadth=hs.bwl, draft=draft, lwl=hs.lwl, cb=hs.cb, kg=kg, gm=gm, bilge=bilge,
+                      bilge_keel_area=bilge_keel_area)
+    lw1, _ = wind_levers(w.area, w.z, displacement, pressure)
+    gz = GZCurve(side * curve.heel, side * curve.gz)
+    res = weather_criterion(gz, lw1=lw1, roll=roll, windage_area=w.area, z=w.z,
+                            windage_centroid=(float(w.centroid[0]), float(w.centroid[1])),
+                            deck_edge_angle=curve.deck_edge_angle(side),
+                            downflooding_angle=curve.downflooding_angle(side)[0], pressure=pressure)
+    return res, w

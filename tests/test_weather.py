@@ -234,3 +234,20 @@ def test_wind_too_strong_fails_with_note():
                             z=1.0, deck_edge_angle=None, downflooding_angle=None)
     assert res.theta0 is None and not res.passed
     assert any("never reaches" in n for n in res.notes) and any("16°" in n for n in res.notes)
+
+
+def test_condition_wrapper_reproduces_the_box_barge(barge):
+    # the same box barge through the public-API wrapper: same windage, levers and areas
+    from meshhydro.weather import weather_for_condition
+
+    _, _, hull, _ = barge
+    ref = _independent(504.0)
+    res, w = weather_for_condition(hull, displacement=DISP, cog=(L / 2, 0.0, KG), density=RHO)
+    assert w.area == pytest.approx(ref["A"], rel=1e-12) and res.z == pytest.approx(ref["Z"], rel=1e-12)
+    assert res.windage_centroid == pytest.approx((L / 2, T + (D - T) / 2), rel=1e-12)
+    assert res.theta1 == pytest.approx(ref["th1"], rel=1e-9)
+    assert res.area_a == pytest.approx(ref["a"], abs=2e-6) and res.area_b == pytest.approx(ref["b"], abs=2e-6)
+    assert res.passed == ref["passed"]
+    # wind from starboard on a symmetric barge: the mirror image
+    res2, _ = weather_for_condition(hull, displacement=DISP, cog=(L / 2, 0.0, KG), density=RHO, side=-1)
+    assert res2.area_a == pytest.approx(res.area_a, abs=1e-9) and res2.theta0 == pytest.approx(res.theta0, abs=1e-9)
