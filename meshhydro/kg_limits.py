@@ -196,20 +196,24 @@ def margins_of_report(report: Any) -> dict[str, float | None]:
 def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any = None, *,
                        kg_range: tuple[float, float] | None = None, lcg: float | None = None, tcg: float = 0.0,
                        heels: Sequence[float] | None = None, density: float = 1.025, openings: Sequence[Any] = (),
-                       sides: tuple[int, ...] = (1,), steps: int = 40, xtol: float = 1e-6) -> list[KGLimitRow]:
+                       sides: tuple[int, ...] = (1,), weather: dict[str, Any] | None = None, steps: int = 40,
+                       xtol: float = 1e-6) -> list[KGLimitRow]:
     """KG limits of ``hull`` for a criteria set (default IMO 2008 IS Code, Part A, 2.2).
 
     KN comes from one free-trim curve per displacement with G = (lcg, tcg, 0); ``lcg``
     defaults to the LCB of the level flotation at that displacement (the cross-curve
     convention). ``heels`` default 0..90° in 1° (and the mirror for port when
     ``sides`` holds −1). kg is the fluid KG [m]; ``kg_range`` defaults to
-    (0, hull depth).
+    (0, hull depth). ``weather``: keywords of :func:`meshhydro.weather.weather_on_curve`
+    (items, bilge, bilge_keel_area, pressure, lever_to) to include the weather criterion
+    (IS Code 2.3; ids "2.3 heel" and "2.3 areas", wind from port, and from starboard too
+    when ``sides`` holds −1); the curves then also cover the port angles.
     """
     from . import criteria as _crit
 
     cset = _crit.IMO_2008_GENERAL if criteria is None else criteria
     hs = list(heels) if heels is not None else list(range(0, 91))
-    if -1 in sides:
+    if -1 in sides or weather is not None:
         hs = sorted(set(hs) | {-h for h in hs})
     rng = (0.0, float(hull.depth)) if kg_range is None else kg_range
 
@@ -226,15 +230,33 @@ def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any 
         c = curve_at(d, 0.0)
         return KNCurve(d, c.heel, c.kn, c.trim, c.gm_upright, c)
 
+    def judge(c: Any, wind: Any = None) -> Margins:
+        out = margins_of_report(_crit.evaluate(c, cset, sides=sides))
+        if weather is not None:
+            from .weather import weather_margins
+
+            for sd in sides:
+                m = weather_margins(hull, c, side=sd, windage_result=wind, **weather)
+                out.update({(k if len(sides) == 1 else f"{k} {'starboard' if sd > 0 else 'port'}"): v
+                            for k, v in m.items()})
+        return out
+
+    winds: dict[float, Any] = {}
+
     def fast(kn: KNCurve, kg: float) -> Margins:
         c = kn.curve
         gm = None if c.gm_upright is None else c.gm_upright - kg
         moved = replace(c, gz=c.gz - kg * np.sin(np.radians(c.heel)), cog=c.cog + np.array([0.0, 0.0, kg]),
                         gm_upright=gm)
-        return margins_of_report(_crit.evaluate(moved, cset, sides=sides))
+        if weather is not None and kn.displacement not in winds:  # the upright waterline does not move
+            from .weather import curve_windage
+
+            winds[kn.displacement] = curve_windage(hull, c, items=weather.get("items", ()),
+                                                   lever_to=weather.get("lever_to", "underwater_centre"))
+        return judge(moved, winds.get(kn.displacement))
 
     def exact(d: float, kg: float) -> Margins:
-        return margins_of_report(_crit.evaluate(curve_at(d, kg), cset, sides=sides))
+        return judge(curve_at(d, kg))
 
     def gm_at(kn: KNCurve, kg: float) -> float | None:
         if kn.kg_independent:

@@ -264,41 +264,71 @@ def weather_criterion(gz: GZCurve, *, lw1: float, roll: RollAngle, windage_area:
 
 
 def weather_for_condition(hull: Any, *, displacement: float, cog: Any, fsm: float = 0.0, density: float = 1.025,
-                          openings: Any = (), items: Any = (), bilge: str = "round", bilge_keel_area: float = 0.0,
-                          pressure: float = PRESSURE, lever_to: str = "underwater_centre", side: int = 1,
-                          step: float = 1.0) -> tuple[WeatherResult, Any]:
+                          openings: Any = (), step: float = 1.0, **spec: Any) -> tuple[WeatherResult, Any]:
     """The weather criterion for one loading condition of a loaded Hull, using the public API.
 
-    The wind blows from port (``side`` = +1, heel to starboard) or from starboard (−1).
-    A free-trim GZ curve is solved from −90° to 90° in ``step`` [deg]; the upright
-    free-trim waterline gives the windage (:func:`meshhydro.windage.windage`); the roll
-    factors use the upright hydrostatics (B = waterline breadth, d = draft at the
-    reference point, L = waterline length, Cb as in :mod:`meshhydro.hydrostatics`),
-    KG and GM corrected for free surface. Returns (WeatherResult, Windage).
+    A free-trim GZ curve is solved from −90° to 90° in ``step`` [deg] (G raised by
+    ``fsm`` [t·m] / Δ); ``spec`` takes the keywords of :func:`weather_on_curve` (items,
+    bilge, bilge_keel_area, pressure, lever_to, side). Returns (WeatherResult, Windage).
     """
-    from .windage import windage
-
-    if side not in (1, -1):
-        raise InputError(f"weather: side must be 1 (wind from port) or -1 (from starboard), got {side!r}")
     n = int(round(90.0 / step))
     if n < 1 or abs(n * step - 90.0) > 1e-9:
         raise InputError(f"weather: step must divide 90°, got {step!r}")
     heels = np.linspace(-90.0, 90.0, 2 * n + 1)
     curve = hull.righting_curve(displacement, cog, heels=heels, density=density, fsm=fsm, openings=openings)
-    k0 = int(np.argmin(np.abs(curve.heel)))
-    trim = float(curve.trim[k0])
-    draft = float(curve.draft[k0]) / math.cos(math.radians(trim))
-    w = windage(hull.vertices, hull.faces, draft=draft, trim=trim, x_ref=hull.x_ref, items=items,
-                lever_to=lever_to)
-    hs = hull.hydrostatics(draft, trim=trim, density=density)
-    kg = float(curve.cog[2])
+    return weather_on_curve(hull, curve, **spec)
+
+
+def weather_on_curve(hull: Any, curve: Any, *, items: Any = (), bilge: str = "round", bilge_keel_area: float = 0.0,
+                     pressure: float = PRESSURE, lever_to: str = "underwater_centre", side: int = 1,
+                     windage_result: Any = None) -> tuple[WeatherResult, Any]:
+    """The weather criterion on a solved RightingCurve of ``hull`` (needs 0° and enough port angles).
+
+    The wind blows from port (``side`` = +1, heel to starboard) or from starboard (−1).
+    The upright free-trim waterline of the curve gives the windage
+    (:func:`meshhydro.windage.windage`, unless ``windage_result`` is given); the roll
+    factors use the upright hydrostatics (B = waterline breadth, d = draft at the
+    reference point, L = waterline length, Cb as in :mod:`meshhydro.hydrostatics`) and
+    the curve's G and upright GM, both corrected for free surface.
+    """
+    if side not in (1, -1):
+        raise InputError(f"weather: side must be 1 (wind from port) or -1 (from starboard), got {side!r}")
+    w = windage_result or curve_windage(hull, curve, items=items, lever_to=lever_to)
+    hs = hull.hydrostatics(w.draft, trim=w.trim, density=curve.density)
     gm = curve.gm_upright if curve.gm_upright is not None else curve.gm_from_slope()
-    roll = roll_angle(breadth=hs.bwl, draft=draft, lwl=hs.lwl, cb=hs.cb, kg=kg, gm=gm, bilge=bilge,
-                      bilge_keel_area=bilge_keel_area)
-    lw1, _ = wind_levers(w.area, w.z, displacement, pressure)
+    roll = roll_angle(breadth=hs.bwl, draft=w.draft, lwl=hs.lwl, cb=hs.cb, kg=float(curve.cog[2]), gm=gm,
+                      bilge=bilge, bilge_keel_area=bilge_keel_area)
+    lw1, _ = wind_levers(w.area, w.z, curve.displacement, pressure)
     gz = GZCurve(side * curve.heel, side * curve.gz)
     res = weather_criterion(gz, lw1=lw1, roll=roll, windage_area=w.area, z=w.z,
                             windage_centroid=(float(w.centroid[0]), float(w.centroid[1])),
                             deck_edge_angle=curve.deck_edge_angle(side),
                             downflooding_angle=curve.downflooding_angle(side)[0], pressure=pressure)
     return res, w
+
+
+def curve_windage(hull: Any, curve: Any, *, items: Any = (), lever_to: str = "underwater_centre") -> Any:
+    """Windage (:func:`meshhydro.windage.windage`) at the upright free-trim waterline of a RightingCurve.
+
+    The curve's draft is the vertical depth of K = (x_ref, 0, 0); the draft along the hull
+    z axis at x_ref is that over cos(trim)."""
+    from .windage import windage
+
+    k0 = int(np.argmin(np.abs(curve.heel)))
+    if abs(curve.heel[k0]) > 1e-12:
+        raise InputError("weather: the GZ curve must include the upright position (0°)")
+    trim = float(curve.trim[k0])
+    draft = float(curve.draft[k0]) / math.cos(math.radians(trim))
+    return windage(hull.vertices, hull.faces, draft=draft, trim=trim, x_ref=hull.x_ref, items=items,
+                   lever_to=lever_to)
+
+
+def weather_margins(hull: Any, curve: Any, **spec: Any) -> dict[str, float | None]:
+    """{"2.3 heel": margin [deg], "2.3 areas": margin [m·rad]} on a curve, for KG limits.
+
+    Without a positive upright GM the roll period is undefined and both margins are None
+    (the criterion cannot pass)."""
+    gm = curve.gm_upright if curve.gm_upright is not None else curve.gm_from_slope()
+    if gm is None or not gm > 0:
+        return {"2.3 heel": None, "2.3 areas": None}
+    return dict(weather_on_curve(hull, curve, **spec)[0].margins)

@@ -96,3 +96,20 @@ def test_trimming_kn_without_exact_path_is_refused():
         kg_limits(lambda d: kn, [1.0], lambda k, kg: {"x": 1.0 - kg}, kg_range=(0.0, 2.0))
     with pytest.raises(InputError, match="kg_min < kg_max"):
         kg_limit(lambda k: {"x": 1.0}, 2.0, 1.0)
+
+
+def test_weather_heel_limit_governs_with_closed_form():
+    # wall-sided box barge (GZ = sin φ (GM + BM tan² φ / 2), Barrass & Derrett) under a strong wind
+    # (P = 3000 N/m², a user pressure): the steady heel θ0 reaches 16° (IS Code 2.3; limit from memory,
+    # REFERENCES.md) at KG = KM + BM tan² 16° / 2 - lw1 / sin 16°, with lw1 = P A Z / (1000 g Δ),
+    # A = L x freeboard and Z from the centre of A to the centre of the underwater lateral area
+    L, B, D, T, P = 20.0, 4.0, 5.2, 2.5, 3000.0
+    hull = _hull(*box(L, B, D))
+    disp = RHO * L * B * T
+    row = kg_limits_for_hull(hull, [disp], IMO_2008_GENERAL, heels=range(0, 91),
+                             weather=dict(pressure=P), xtol=1e-9)[0]
+    bm = B * B / (12 * T)
+    lw1 = P * L * (D - T) * ((D - T) / 2 + T / 2) / (1000 * 9.81 * disp)
+    p16 = math.radians(16.0)
+    assert row.governing == "2.3 heel"
+    assert row.kg_max == pytest.approx(T / 2 + bm + 0.5 * bm * math.tan(p16) ** 2 - lw1 / math.sin(p16), abs=1e-5)
