@@ -122,6 +122,16 @@ class HeelingArm:
         return np.interp(x, t[:, 0], t[:, 1])
 
     @property
+    def max_angle(self) -> float:
+        """Largest angle [deg] at which the arm is defined (table end; 90° for cosⁿ with a
+        fractional n; otherwise unbounded)."""
+        if self.kind == "table":
+            return float(self.table[-1, 0])
+        if self.kind == "cosine" and self.n != int(self.n):
+            return 90.0
+        return math.inf
+
+    @property
     def breakpoints(self) -> np.ndarray:
         """Angles [deg] where the arm is not smooth (table keys); empty otherwise."""
         return self.table[:, 0] if self.kind == "table" else np.zeros(0)
@@ -268,8 +278,9 @@ def arm_analysis(gz: GZCurve, arm: HeelingArm, *, start: float = 0.0, limit: flo
     """
     top = gz.hi
     top_reason = "end of the GZ curve"
-    if arm.kind == "table" and arm.table[-1, 0] < top:
-        top, top_reason = float(arm.table[-1, 0]), "end of the arm's table"
+    if arm.max_angle < top:
+        top, top_reason = arm.max_angle, ("end of the arm's table" if arm.kind == "table"
+                                          else "90° (cosⁿ with a fractional n ends there)")
     gz.check(start, top, f"arm {arm.name!r}:")
     f0 = float(gz(start) - arm(start))
     cr, first = crossings(gz, arm, start, top) if top > start else ([], int(np.sign(f0)))

@@ -320,7 +320,7 @@ def curve_windage(hull: Any, curve: Any, *, items: Any = (), lever_to: str = "un
     trim = float(curve.trim[k0])
     draft = float(curve.draft[k0]) / math.cos(math.radians(trim))
     return windage(hull.vertices, hull.faces, draft=draft, trim=trim, x_ref=hull.x_ref, items=items,
-                   lever_to=lever_to)
+                   lever_to=lever_to, closed=bool(hull.report.closed))
 
 
 def weather_margins(hull: Any, curve: Any, **spec: Any) -> dict[str, float | None]:

@@ -69,16 +69,20 @@ def windage_item(name: str, *, area: float | None = None, centroid: Sequence[flo
     return WindageItem(name, area=a, centroid=(float(c[0]), float(c[1])))
 
 
-def silhouette(vertices: np.ndarray, faces: np.ndarray) -> Any:
+def silhouette(vertices: np.ndarray, faces: np.ndarray, *, closed: bool = False) -> Any:
     """Union of the triangles projected onto the centreplane (x, z): a shapely geometry.
 
     vertices (n, 3) [m], faces (m, 3). Triangles seen edge-on (zero projected area) add
-    nothing to the union and are skipped."""
+    nothing to the union and are skipped. ``closed``: the mesh is closed with outward
+    normals; then only the faces facing +y are united, since every line along y that
+    meets the solid leaves it through such a face: the same silhouette (up to sets of no
+    area) for half the work."""
     import shapely
 
     p = np.asarray(vertices, float)[np.asarray(faces)][:, :, [0, 2]]  # (m, 3, 2)
+    # cross product of the projected edges: the y component of the face normal, negated
     cr = (p[:, 1, 0] - p[:, 0, 0]) * (p[:, 2, 1] - p[:, 0, 1]) - (p[:, 1, 1] - p[:, 0, 1]) * (p[:, 2, 0] - p[:, 0, 0])
-    p = p[cr != 0]
+    p = p[cr < 0] if closed else p[cr != 0]
     if len(p) == 0:
         return shapely.Polygon()
     rings = np.concatenate([p, p[:, :1]], axis=1)
@@ -134,7 +138,7 @@ class Windage:
 
 def windage(vertices: np.ndarray, faces: np.ndarray, *, draft: float, trim: float = 0.0, x_ref: float = 0.0,
             items: Sequence[WindageItem] = (), lever_to: str = "underwater_centre",
-            mean_draft: float | None = None) -> Windage:
+            mean_draft: float | None = None, closed: bool = False) -> Windage:
     """Lateral windage of a hull mesh upright at ``draft`` [m] (at ``x_ref``) and ``trim`` [deg].
 
     Parameters
@@ -144,13 +148,15 @@ def windage(vertices: np.ndarray, faces: np.ndarray, *, draft: float, trim: floa
     lever_to : "underwater_centre" | "half_draft"
     mean_draft : float [m], optional
         The d of "half the draught" (default ``draft``).
+    closed : bool
+        The hull mesh is closed with outward normals (see :func:`silhouette`).
     """
     if lever_to not in LEVER_TO:
         raise InputError(f"windage: lever_to must be one of {', '.join(LEVER_TO)}, got {lever_to!r}")
     v = np.asarray(vertices, float)
     size = 10.0 * float(np.ptp(v[:, [0, 2]], axis=0).max() + abs(draft) + abs(x_ref) + 1.0)
     above_hp, below_hp = half_planes((x_ref, draft), trim, size)
-    sil = silhouette(v, faces)
+    sil = silhouette(v, faces, closed=closed)
     hull_above = sil.intersection(above_hp)
     below = sil.intersection(below_hp)
     import shapely

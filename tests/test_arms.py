@@ -120,3 +120,12 @@ def test_bad_gz_and_criteria_refused():
         ArmCriterion("x", "residual_area")
     with pytest.raises(InputError, match="kind must be"):
         ArmCriterion("x", "energy", minimum=1.0)
+
+
+def test_fractional_cosine_arm_stops_at_90():
+    # cos^1.5 has no real value beyond 90°; the search stops there and says so
+    arm = make_arm("wind", "cosine", a=0.1, n=1.5)
+    an = arm_analysis(SINE, arm)
+    assert an.end == 90.0 and "90°" in an.end_reason
+    with pytest.raises(InputError, match="undefined beyond 90"):
+        arm(120.0)

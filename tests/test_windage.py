@@ -61,8 +61,13 @@ def test_irregular_hull_matches_trimesh_projection(blob):
     a_dn = projected(dn, normal=[0, 1, 0], precise=True, rpad=0.0, apad=0.0).area
     assert w.hull_area == pytest.approx(a_up, rel=1e-7)
     assert w.underwater_area == pytest.approx(a_dn, rel=1e-7)
-    # centroid heights: the projected polygons of the sliced meshes (shapely, same frame after projection)
     assert w.centroid[1] > z0 > w.underwater_centroid[1]
+    # a closed mesh: the faces facing +y alone give the same silhouette
+    c = windage(v, f, draft=z0, x_ref=3.0, closed=True)
+    assert c.area == pytest.approx(w.area, rel=1e-12) and c.underwater_area == pytest.approx(w.underwater_area,
+                                                                                              rel=1e-12)
+    assert c.centroid == pytest.approx(w.centroid, rel=1e-12)
+    assert c.underwater_centroid == pytest.approx(w.underwater_centroid, rel=1e-12)
 
 
 def test_items_add_and_meshes_unite():
