@@ -17,7 +17,8 @@ The search is by bracketing, never by linear guesses: the margins are scanned on
 grid from ``kg_min`` upwards, the first grid step where something fails brackets the
 limit, and Brent's method finds each failing criterion's crossing in it; the least
 crossing is the limit and its criterion governs. The limit is the top of the passing
-range that starts at ``kg_min``.
+range that starts at ``kg_min``. A failure that starts and ends between two grid points
+is not seen: the grid (``steps``) must be fine against the KG span of any such pocket.
 """
 from __future__ import annotations
 
@@ -148,7 +149,7 @@ def kg_limits(kn_curve_provider: Callable[[float], KNCurve], displacements: Sequ
             if exact_margins is None:
                 raise InputError(f"KG limits: at {d:g} t the vessel trims as it heels, so KN depends on KG; "
                                  "give exact_margins to refine")
-            kg, gov, note = _refine(lambda k, d=d: exact_margins(float(d), k), kg, gov, note, lo, hi, xtol)
+            kg, gov, note = _refine(lambda k, d=d: exact_margins(float(d), k), kg, lo, hi, steps, xtol)
             method = "refined"
         m = {} if kg is None else dict((exact_margins(float(d), kg) if method == "refined"
                                         else evaluate_margins(kn, kg)))
@@ -159,14 +160,14 @@ def kg_limits(kn_curve_provider: Callable[[float], KNCurve], displacements: Sequ
     return rows
 
 
-def _refine(margins: Callable[[float], Margins], kg: float | None, gov: str | None, note: str, lo: float,
-            hi: float, xtol: float) -> tuple[float | None, str | None, str]:
+def _refine(margins: Callable[[float], Margins], kg: float | None, lo: float,
+            hi: float, steps: int, xtol: float) -> tuple[float | None, str | None, str]:
     """Bracket the exact limit near the KN estimate ``kg`` and solve it by Brent's method."""
+    m_lo = margins(lo)
+    if not _passes(m_lo):
+        return None, min(m_lo, key=lambda k: _signed(m_lo, k)), f"fails already at KG {lo:g} m"
     if kg is None:
-        return kg_limit(margins, lo, hi, steps=1, xtol=xtol) if _passes(margins(lo)) else \
-            (None, gov, f"fails already at KG {lo:g} m")
-    if not _passes(margins(lo)):
-        return None, min(margins(lo), key=lambda k: _signed(margins(lo), k)), f"fails already at KG {lo:g} m"
+        return kg_limit(margins, lo, hi, steps=steps, xtol=xtol)
     step = max(0.01 * (hi - lo), 100 * xtol)
     a = max(lo, kg - step)
     while not _passes(margins(a)):

@@ -118,7 +118,8 @@ class Windage:
 
     area, centroid (2,) (x, z): total lateral windage above water, items included;
     hull_area: the hull's own part; underwater_area, underwater_centroid (2,);
-    z: wind lever Z [m]; lever_to: how Z was measured; items: name → (area, (x, z)).
+    z: wind lever Z [m]; lever_to: how Z was measured; items: name → (area, (x, z)), for a
+    mesh item its own above-water silhouette (in the total, overlaps with the hull count once).
     above, below: the shapely silhouettes (for drawing).
     """
 
@@ -154,7 +155,9 @@ def windage(vertices: np.ndarray, faces: np.ndarray, *, draft: float, trim: floa
     if lever_to not in LEVER_TO:
         raise InputError(f"windage: lever_to must be one of {', '.join(LEVER_TO)}, got {lever_to!r}")
     v = np.asarray(vertices, float)
-    size = 10.0 * float(np.ptp(v[:, [0, 2]], axis=0).max() + abs(draft) + abs(x_ref) + 1.0)
+    pts = [v[:, [0, 2]]] + [it.vertices[:, [0, 2]] for it in items if it.vertices is not None]
+    allp = np.vstack(pts)
+    size = 10.0 * float(np.abs(allp).max() + abs(draft) + abs(x_ref) + 1.0)
     above_hp, below_hp = half_planes((x_ref, draft), trim, size)
     sil = silhouette(v, faces, closed=closed)
     hull_above = sil.intersection(above_hp)
