@@ -147,8 +147,9 @@ def wind_levers(area: float, z: float, displacement: float, pressure: float = PR
     if not (math.isfinite(a) and a >= 0):
         raise InputError(f"weather: windage area must be ≥ 0, got {area!r} m²")
     zz = float(z)
-    if not math.isfinite(zz):
-        raise InputError(f"weather: lever Z must be finite, got {z!r} m")
+    if not (math.isfinite(zz) and zz >= 0):
+        raise InputError(f"weather: lever Z must be a number ≥ 0 (windage centre above the underwater centre), "
+                         f"got {z!r} m")
     lw1 = _positive("pressure", pressure) * a * zz / (1000.0 * G * _positive("displacement", displacement))
     return lw1, 1.5 * lw1
 

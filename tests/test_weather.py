@@ -116,6 +116,10 @@ def test_wind_lever_units():
     assert lw1 == pytest.approx(504 * 100 * 3 / (1000 * 9.81 * 200))
     assert lw2 == pytest.approx(1.5 * lw1)
     assert wind_levers(100.0, 3.0, 200.0, pressure=252.0)[0] == pytest.approx(lw1 / 2)
+    for bad, msg in (((100.0, -1.0, 200.0), "lever Z"), ((100.0, 3.0, 0.0), "displacement"),
+                     ((-5.0, 3.0, 200.0), "windage area")):
+        with pytest.raises(InputError, match=msg):
+            wind_levers(*bad)
 
 
 @pytest.mark.parametrize("kwargs,msg", [
