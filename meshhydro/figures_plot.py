@@ -95,21 +95,30 @@ def _window(pts: list[np.ndarray]) -> tuple[float, float, float, float, float]:
 
 
 def _angle_labels(ax: Any, heel: np.ndarray, b: np.ndarray, g: np.ndarray, colour: str, gap: float) -> None:
-    """Label angles along the trace, skipping points closer than ``gap`` [m] to the last labelled one
-    (so labels never pile up where the trace bunches), offset from the trace away from G."""
+    """Label angles along the trace, offset from it away from G. A point closer than ``gap`` [m] to
+    the last labelled one is skipped, and so is any label whose box would touch one already placed
+    (measured after the axes' final layout), so labels never pile up where the trace bunches."""
+    ax.apply_aspect()
+    rend = ax.figure.canvas.get_renderer()
+    placed: list[Any] = []
     last = None
     for j in range(len(heel)):
         if last is not None and np.linalg.norm(b[j] - b[last]) < gap:
             continue
-        last = j
         lo, hi = max(j - 1, 0), min(j + 1, len(heel) - 1)
         d = b[hi] - b[lo]
         nrm = np.array([-d[1], d[0]])
         nrm = nrm / np.linalg.norm(nrm) if np.linalg.norm(nrm) > 0 else np.array([0.0, -1.0])
         if nrm @ (b[j] - g) < 0:
             nrm = -nrm
-        ax.annotate(f"{heel[j]:g}°", b[j], xytext=tuple(12 * nrm), textcoords="offset points", fontsize=7,
-                    color=colour, ha="center", va="center")
+        t = ax.annotate(f"{heel[j]:g}°", b[j], xytext=tuple(12 * nrm), textcoords="offset points", fontsize=7,
+                        color=colour, ha="center", va="center")
+        box = t.get_window_extent(rend).expanded(1.15, 1.3)
+        if any(box.overlaps(p) for p in placed):
+            t.remove()
+            continue
+        placed.append(box)
+        last = j
 
 
 def section_figure(data: Mapping[str, Any]) -> Any:
@@ -152,7 +161,6 @@ def section_figure(data: Mapping[str, Any]) -> Any:
     ax.plot([cob[k][1], cob[k][1] + 2 * ext * u[1]], [cob[k][2], cob[k][2] + 2 * ext * u[2]], ":", color="0.35",
             lw=1, label=f"vertical through B at {heel[k]:g}°")
     ax.plot([g[0], foot[1]], [g[1], foot[2]], color="#d35400", lw=3, label=f"GZ {gz[k]:+.3f} m at {heel[k]:g}°")
-    _angle_labels(ax, heel, b, g, "#1f5fa8", 0.05 * ext)
     ax.set_xlim(y0, y1)
     ax.set_ylim(z0, z1)
     ax.invert_xaxis()  # seen from astern: port (+y) on the left
@@ -162,6 +170,7 @@ def section_figure(data: Mapping[str, Any]) -> Any:
     ax.grid(True, alpha=0.3)
     ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=8.5, frameon=False)
     ax.set_title(data.get("title") or f"{data['vessel']}: trace of B and locus of M", fontsize=10)
+    _angle_labels(ax, heel, b, g, "#1f5fa8", 0.05 * ext)
     return fig
 
 
