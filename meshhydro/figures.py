@@ -96,16 +96,15 @@ def _limit_lines(ax: Any, limits: Sequence[Mapping[str, Any]], xmax: float) -> l
     return ys
 
 
-def _mark_max(ax: Any, sides: list[Mapping[str, Any]], colours: list[str]) -> None:
-    """Mark each side's printed maximum at its point; the value goes in the legend (outside the axes),
-    so it can never collide with the curves or another label."""
-    for i, s in enumerate(sides):
-        if s.get("max_gz") is None or s.get("angle_of_max") is None:
-            continue
-        g, a = float(s["max_gz"]), float(s["angle_of_max"])
-        text = f"GZmax {_fmt(g, int(s.get('gz_digits', 3)))} m at {_fmt(a, int(s.get('angle_digits', 1)))}°"
-        ax.plot([a], [g], marker="^", color=colours[i], ms=8, mec="k", mew=0.6, ls="none", zorder=5,
-                label=f"{text} ({s['name']})")
+def _mark_max(ax: Any, s: Mapping[str, Any], colour: str) -> None:
+    """Mark a side's printed maximum at its point; the value goes in the legend (outside the axes),
+    so it can never collide with the curves or another label. Formatted to the printed digits."""
+    if s.get("max_gz") is None or s.get("angle_of_max") is None:
+        return
+    g, a = float(s["max_gz"]), float(s["angle_of_max"])
+    text = f"GZmax {_fmt(g, int(s.get('gz_digits', 3)))} m at {_fmt(a, int(s.get('angle_digits', 1)))}°"
+    ax.plot([a], [g], marker="^", color=colour, ms=8, mec="k", mew=0.6, ls="none", zorder=5,
+            label=f"{text} ({s['name']})")
 
 
 def _gm_tangent(ax: Any, gm: float, ylim: tuple[float, float], xmax: float) -> None:
@@ -144,17 +143,18 @@ def gz_figure(data: Mapping[str, Any]) -> Any:
     sides = list(data["sides"])
     if not sides:
         raise InputError("gz_curve: 'sides' is empty")
-    curves = {str(s.get("name", i)): _side_arrays(s, f"gz_curve side {i}") for i, s in enumerate(sides)}
+    curves = {}
+    for i, s in enumerate(sides):
+        arrays = _side_arrays(s, f"gz_curve side {i}")
+        if str(s["name"]) in curves:
+            raise InputError(f"gz_curve side {i}: the name {s['name']!r} is used twice")
+        curves[str(s["name"])] = arrays
     fig, ax = new_figure((9.0, 5.6))
-    colours = []
     xmax = max(float(x[-1]) for x, _ in curves.values())
-    extra = _limit_lines(ax, data.get("limits", ()), xmax)
-    if data.get("heeling_arm"):
-        extra += _heeling_arm(ax, data["heeling_arm"], curves)
     for i, (s, (x, y)) in enumerate(zip(sides, curves.values(), strict=True)):
         colour, ls = side_style(i)
-        colours.append(colour)
         ax.plot(x, y, color=colour, ls=ls, lw=1.9, label=f"GZ, heeling to {s['name']}")
+        _mark_max(ax, s, colour)
         if s.get("areas"):
             _shade_areas(ax, x, y, s["areas"], colour, str(s["name"]))
         for key, name, mk in (("downflooding", "downflooding", "v"), ("vanishing", "vanishing", "o"),
@@ -165,12 +165,14 @@ def gz_figure(data: Mapping[str, Any]) -> Any:
                         ms=6, label=f"{name} {ang:.1f}° ({s['name']})")
                 if key == "downflooding":
                     ax.axvline(ang, color=colour, lw=0.8, ls=(0, (1, 2)))
+    extra = _limit_lines(ax, data.get("limits", ()), xmax)
+    if data.get("heeling_arm"):
+        extra += _heeling_arm(ax, data["heeling_arm"], curves)
     ylim = _gz_limits(list(curves.values()), extra)
     ax.set_xlim(0, xmax)
     ax.set_ylim(*ylim)
     if data.get("gm") is not None:
         _gm_tangent(ax, float(data["gm"]), ylim, xmax)
-    _mark_max(ax, sides, colours)
     ax.axhline(0, color="k", lw=0.8)
     ax.set_xlabel("heel towards the side named [deg]")
     ax.set_ylabel("righting lever GZ [m]  (positive: righting)")

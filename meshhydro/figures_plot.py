@@ -5,7 +5,6 @@ the caution and turns it into SVG or a file. Hull frame: x forward, y to port, z
 """
 from __future__ import annotations
 
-import math
 from typing import Any, Mapping, Sequence
 
 import numpy as np
@@ -217,7 +216,7 @@ def compare_figure(data: Mapping[str, Any]) -> Any:
         a2.grid(True, alpha=0.3)
         a2.set_title("B traces (thick) and M loci (thin)", fontsize=10)
     fig.suptitle(str(data["title"]), fontsize=11)
-    fig.legend(*ax.get_legend_handles_labels(), loc="center left", bbox_to_anchor=(1.0, 0.5), fontsize=8,
+    fig.legend(*ax.get_legend_handles_labels(), loc="center left", bbox_to_anchor=(1.0, 0.5), fontsize=10,
                frameon=False)
     fig.tight_layout(rect=(0, 0.03, 1, 0.96))
     return fig

@@ -270,3 +270,15 @@ def test_figure_files_by_suffix(tmp_path, suffix, magic):
     with pytest.raises(InputError, match=r"\.png, \.svg or \.pdf"):
         figures.gz_curve({"vessel": "box", "sides": [_side()]}, path=os.path.join(tmp_path, "gz.jpg"))
     assert sorted(os.listdir(tmp_path)) == ["gz" + suffix]  # nothing half-written left behind
+
+
+def test_renderer_and_views_import_no_plotting_at_import_time():
+    # layering rule of the project: the HTML renderer never imports matplotlib; the figure modules
+    # import it only inside the functions that draw
+    import subprocess
+    import sys
+
+    code = ("import sys, meshhydro.html, meshhydro.figures; "
+            "bad = [m for m in sys.modules if m.split('.')[0] in ('matplotlib', 'pyvista')]; "
+            "sys.exit(1 if bad else 0)")
+    assert subprocess.run([sys.executable, "-c", code], cwd=R.ROOT).returncode == 0
