@@ -67,7 +67,7 @@ def hydrostatics_figure(data: Mapping[str, Any]) -> Any:
     for ax in axes[:, 0]:
         ax.set_ylabel("draft T [m]")
     attitude = ""
-    if all(k in rows[0] for k in ("heel", "trim")):
+    if all(k in r for r in rows for k in ("heel", "trim")) and len({(r["heel"], r["trim"]) for r in rows}) == 1:
         attitude = f" (heel {float(rows[0]['heel']):g}°, trim {float(rows[0]['trim']):g}°)"
     fig.suptitle(data.get("title") or f"{data['vessel']}: hydrostatic curves{attitude}", fontsize=11)
     fig.tight_layout(rect=(0, 0.02, 1, 0.98))
@@ -142,6 +142,9 @@ def section_figure(data: Mapping[str, Any]) -> Any:
     k = int(hit[0])
     b, g = cob[:, 1:], g3[1:]
     outline = [np.asarray(p, dtype=float) for p in data.get("outline") or []]
+    for i, p in enumerate(outline):
+        if p.ndim != 2 or p.shape[1] != 2 or len(p) < 2 or not np.all(np.isfinite(p)):
+            raise InputError(f"section_plot: outline polyline {i} must be a finite (k, 2) array of (y, z) [m]")
     y0, y1, z0, z1, ext = _window([b, g[None, :]] + outline)
     fig, ax = new_figure((7.8, 6.4))
     for i, p in enumerate(outline):

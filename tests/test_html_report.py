@@ -124,6 +124,14 @@ def test_raster_figure_embedded(hand):
     assert len(img) == 1 and img[0].get("src").startswith("data:image/png;base64,")
 
 
+def test_gif_embedded_as_data_uri():
+    f = Figure("g", "G", "raster")
+    gif = b"GIF89a" + bytes(20)  # the GIF signature (GIF89a specification) is what is sniffed
+    text = render_html(Document("x", "y", sections=[Section("s", "S", figures=[f])]), draw=lambda _: gif)
+    (img,) = list(_tree(text).iter("img"))
+    assert img.get("src").startswith("data:image/gif;base64,R0lGODlh")  # base64 of "GIF89a"
+
+
 def test_bad_inputs_refused():
     t = Table("t", "T", [Column("a", "a", "m")], rows=[{"a": 1.0, "b": 2.0}])
     with pytest.raises(InputError, match="table 't', row 0: key 'b'"):
@@ -270,6 +278,10 @@ def test_figure_files_by_suffix(tmp_path, suffix, magic):
     with pytest.raises(InputError, match=r"\.png, \.svg or \.pdf"):
         figures.gz_curve({"vessel": "box", "sides": [_side()]}, path=os.path.join(tmp_path, "gz.jpg"))
     assert sorted(os.listdir(tmp_path)) == ["gz" + suffix]  # nothing half-written left behind
+    other = os.path.join(tmp_path, "doc" + suffix)
+    figures.save(Figure("gz", "GZ", "gz_curve", {"vessel": "box", "sides": [_side()]}), other)
+    with open(other, "rb") as fh:
+        assert fh.read(len(magic)) == magic
 
 
 def test_renderer_and_views_import_no_plotting_at_import_time():
