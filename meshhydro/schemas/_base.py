@@ -127,13 +127,15 @@ def _data_loc(loc: Sequence[Any], data: Any) -> list[Any]:
     cur = data
     for i, p in enumerate(loc):
         last = i == len(loc) - 1
+        if not last and isinstance(cur, dict) and p == cur.get("kind"):
+            continue  # the tag of a union chosen by kind
         if isinstance(cur, dict) and p in cur:
             out.append(p)
             cur = cur[p]
         elif isinstance(cur, list) and isinstance(p, int):
             out.append(p)
             cur = cur[p] if 0 <= p < len(cur) else None
-        elif _is_tag(p) or (not last and isinstance(cur, dict) and p == cur.get("kind")):
+        elif _is_tag(p):
             continue
         else:
             out.append(p)
