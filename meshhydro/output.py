@@ -32,7 +32,7 @@ __all__ = ["write_atomic", "save_atomic", "save_figure", "figure_format", "emit"
 #: Figure formats written by :func:`save_figure` unless a caller allows others (suffix -> matplotlib format).
 FIGURE_FORMATS = ("png", "svg", "pdf")
 _LIVE: set[str] = set()
-_LOCK = threading.Lock()
+_LOCK = threading.RLock()  # re-entrant: the signal handler may run while the main thread holds it
 _HANDLED = False
 
 
@@ -146,10 +146,7 @@ def _new_mode(path: str) -> int:
         return os.stat(path).st_mode & 0o7777
     except OSError:
         pass
-    with _LOCK:
-        mask = os.umask(0o022)
-        os.umask(mask)
-    return 0o666 & ~mask
+    return 0o666 & ~_umask()
 
 
 def _tmp_beside(path: str, ext: str = "") -> tuple[int, str]:
@@ -235,6 +232,14 @@ def atomic_dir(path: str) -> Iterator[str]:
 
 
 def _umask() -> int:
+    """The process umask, read from /proc where it is shown, else set and restored."""
+    try:
+        with open("/proc/self/status") as fh:
+            for line in fh:
+                if line.startswith("Umask:"):
+                    return int(line.split()[1], 8)
+    except (OSError, ValueError, IndexError):
+        pass
     with _LOCK:
         mask = os.umask(0o022)
         os.umask(mask)
