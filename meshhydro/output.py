@@ -288,19 +288,19 @@ def emit(path: str | None, text: str) -> None:
 
 def text_table(rows: Sequence[dict[str, Any]], keys: Sequence[str], units: dict[str, str] | None = None,
                digits: dict[str, int] | int = 3, headers: dict[str, str] | None = None, *,
-               max_digits: int = 8) -> str:
+               max_digits: int = 8, exponent: Sequence[str] = ()) -> str:
     """An aligned text table with a units line under the header.
 
     ``digits`` is the least number of decimals of a column; a column gets more (up to ``max_digits``) where
-    its distinct values would otherwise print alike. A column is fixed-point throughout, or, when its values
-    are too small or too large for that, in exponent form throughout (see :func:`format_column`).
+    its distinct values would otherwise print alike. A column is fixed-point throughout, or in exponent
+    form throughout for the keys in ``exponent`` (see :func:`format_column`).
     """
     units = units or {}
     headers = headers or {}
     cols = []
     for k in keys:
         d = digits.get(k, 3) if isinstance(digits, dict) else digits
-        cells = format_column([r.get(k) for r in rows], d, max_digits=max(max_digits, d))
+        cells = format_column([r.get(k) for r in rows], d, max_digits=max(max_digits, d), exponent=k in exponent)
         h = headers.get(k, k)
         u = f"[{units[k]}]" if units.get(k) else ""
         w = max([len(h), len(u)] + [len(c) for c in cells])
@@ -349,11 +349,18 @@ def _fmt_cell(v: Any, digits: int) -> str:
     return str(v)
 
 
-def _fewest(values: list[float], fmt: Callable[[float, int], str], lo: int, hi: int) -> int:
-    """Least precision in lo..hi that keeps apart every pair of values that precision ``hi`` keeps apart."""
-    target = len({fmt(v, hi) for v in values})
-    for k in range(lo, hi):
-        if len({fmt(v, k) for v in values}) == target:
+#: Differences between adjacent rows below this share of the column's largest magnitude (or, in exponent
+#: form, of the larger value) are taken as rounding noise and add no digits.
+NOISE = 1e-5
+
+
+def _fewest(seq: list[float], fmt: Callable[[float, int], str], lo: int, hi: int, floor: float) -> int:
+    """Least precision in lo..hi at which adjacent values that differ by more than ``floor`` (or, with
+    ``floor`` < 0, by more than NOISE of the larger) print apart; ``hi`` when none does."""
+    pairs = [(a, b) for a, b in zip(seq, seq[1:])
+             if abs(a - b) > (floor if floor >= 0 else NOISE * max(abs(a), abs(b)))]
+    for k in range(lo, hi + 1):
+        if all(fmt(a, k) != fmt(b, k) for a, b in pairs):
             return k
     return hi
 
@@ -362,28 +369,31 @@ def _sci(f: float, k: int) -> str:
     return f"{f:.{k}e}"
 
 
-def format_column(values: Sequence[Any], digits: int = 3, *, max_digits: int = 8) -> list[str]:
+def format_column(values: Sequence[Any], digits: int = 3, *, max_digits: int = 8,
+                  exponent: bool = False) -> list[str]:
     """Cells of one table column, all in one notation.
 
     Floats are fixed-point with the fewest decimals >= ``digits`` (and <= ``max_digits``) that print apart
-    every two values that differ at ``max_digits`` decimals (so 0.7999, 0.8 and 0.8001 get 4 decimals, and
-    float noise beyond ``max_digits`` adds none). When the largest magnitude would not show at
-    ``max_digits`` decimals, or is 1e15 or more, the whole column is in exponent form instead, with as many
-    significant digits (3 to ``max_digits``) as keep the values apart. Other cells as :func:`_fmt_cell`.
+    every two adjacent rows whose values differ by more than :data:`NOISE` times the column's largest
+    magnitude (so 0.7999, 0.8 and 0.8001 get 4 decimals, and rounding noise adds none); a column whose
+    largest value would print as zero gets the decimals that show it, if ``max_digits`` can. With
+    ``exponent`` (a column the caller flags, such as residuals) the whole column is in exponent form, with
+    as many significant digits (3 to ``max_digits``) as keep adjacent values apart. Non-float cells as
+    :func:`_fmt_cell`.
     """
     fl = [float(v) for v in values if _is_float(v) and math.isfinite(float(v))]
     if not fl:
         return [_fmt_cell(v, digits) for v in values]
-    scale = max(abs(f) for f in fl)
-    exponent = scale >= 1e15 or (scale > 0 and not _fixed(scale, max_digits).strip("-0."))
     if exponent:
-        k = _fewest(fl, _sci, 2, max(2, max_digits - 1))
+        k = _fewest(fl, _sci, 2, max(2, max_digits - 1), -1.0)
         return [_sci(float(v), k) if _is_float(v) and math.isfinite(float(v)) else _fmt_cell(v, digits)
                 for v in values]
+    scale = max(abs(f) for f in fl)
     lo = digits
-    while lo < max_digits and not _fixed(scale, lo).strip("-0."):
-        lo += 1
-    k = _fewest(fl, _fixed, lo, max(lo, max_digits))
+    if _fixed(scale, max_digits).strip("-0."):
+        while lo < max_digits and not _fixed(scale, lo).strip("-0."):
+            lo += 1
+    k = _fewest(fl, _fixed, lo, max(lo, max_digits), max(NOISE * scale, 10.0 ** -max_digits))
     return [_fmt_cell(v, k) for v in values]
 
 

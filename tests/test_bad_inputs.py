@@ -412,6 +412,19 @@ def test_study_range_backwards():
         "study.toml: [parameters] beam.stop: must not be below start (2), got 1"
 
 
+def test_study_criteria_set_unknown():
+    assert study_error(lambda d: d["analysis"].update(criteria="imo2009")) == (
+        "study.toml: [analysis] criteria: must be imo2008 or imo2008-weather or a path to a .toml file, "
+        "got 'imo2009'")
+
+
+def test_study_meshes_relative_to_the_file():
+    data = copy.deepcopy(STUDY)
+    data["study"] = {"name": "two hulls", "meshes": ["a.stl", "../b.stl"]}
+    spec = validate_study(data, "/data/studies/s.toml")
+    assert spec.mesh_paths() == ["/data/studies/a.stl", "/data/b.stl"]
+
+
 def test_study_kg_and_cog():
     assert study_error(lambda d: d["analysis"].update(cog=[4.0, 0.0, 1.2])) == \
         "study.toml: [analysis] cog: contradicts kg; give kg or cog, not both"

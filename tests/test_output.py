@@ -230,8 +230,8 @@ def test_atomic_dir_replaces_the_folder_whole(tmp_path):
 
 # ---------------------------------------------------------------- numbers in text
 
-def _cells(table: str, col: int) -> list[str]:
-    return [ln.split()[col] for ln in table.splitlines()[2:]]
+def _cells(table: str, col: int, head: int = 2) -> list[str]:
+    return [ln.split()[col] for ln in table.splitlines()[head:]]
 
 
 def test_rows_that_differ_in_the_fourth_decimal_print_apart():
@@ -244,9 +244,15 @@ def test_float_noise_adds_no_digits():
     assert format_column([0.1 + 0.2, 0.3, 0.5], 3) == ["0.300", "0.300", "0.500"]
 
 
-def test_digits_capped():
-    assert format_column([1.0, 1.0 + 1e-12], 3, max_digits=8) == ["1.000", "1.000"]
-    assert format_column([1.0, 1.0 + 3e-8], 3, max_digits=8) == ["1.00000000", "1.00000003"]
+def test_digits_grow_to_the_difference_and_stop_at_noise():
+    assert format_column([1.0, 1.0 + 3e-5], 3) == ["1.00000", "1.00003"]
+    assert format_column([1.0, 1.0 + 3e-7], 3) == ["1.000", "1.000"]  # below 1e-5 of the column: noise
+    assert format_column([100.0, 100.0 + 3e-4], 3, max_digits=3) == ["100.000", "100.000"]  # capped
+
+
+def test_only_adjacent_rows_are_separated():
+    # symmetric rows far apart in a table (port and starboard) may print alike
+    assert format_column([0.8123, 0.9, 0.81231], 3) == ["0.812", "0.900", "0.812"]
 
 
 def test_no_exponent_inside_a_fixed_point_column():
@@ -254,9 +260,21 @@ def test_no_exponent_inside_a_fixed_point_column():
     assert all("e" not in c for c in cells) and cells[1:] == ["0.500", "1.250"]
 
 
-def test_a_column_of_tiny_values_is_in_exponent_form_throughout():
-    cells = format_column([4.7e-11, 1.2e-12, 0.0], 4)
+def test_a_flagged_column_is_in_exponent_form_throughout():
+    cells = format_column([4.7e-11, 1.2e-12, 0.0], 4, exponent=True)
     assert cells == ["4.70e-11", "1.20e-12", "0.00e+00"]
+    t = text_table([{"r": 4.7e-11, "x": 1.0}, {"r": 0.0125, "x": 2.0}], ["r", "x"], exponent=["r"])
+    assert _cells(t, 0, 1) == ["4.70e-11", "1.25e-02"] and _cells(t, 1, 1) == ["1.000", "2.000"]
+
+
+def test_rounding_noise_in_a_zero_column_prints_as_zero():
+    # a transverse centre of a symmetric form: zero, with rounding noise near 1e-16
+    assert format_column([2.44e-16, -2.62e-17, 0.0], 3) == ["0.000", "0.000", "0.000"]
+
+
+def test_small_values_get_the_decimals_that_show_them():
+    assert format_column([6.6e-05, 1.0e-05], 3) == ["0.0001", "0.0000"]
+    assert format_column([6.6e-05, 6.0e-05], 3) == ["0.00007", "0.00006"]
 
 
 def test_no_negative_zero_and_blanks():

@@ -6,11 +6,13 @@ Parameter values are plain numbers in the unit the generator documents (lengths 
 from __future__ import annotations
 
 import math
+import os
 from typing import Annotated, Any, Literal, Optional, Union
 
-from pydantic import Discriminator, Field, Tag, model_validator
+from pydantic import Discriminator, Field, PrivateAttr, Tag, model_validator
 
 from ._base import Num, Pos, Strict_, Text, Vec3, conflict, validate
+from .case import BUILTIN_SETS
 
 #: Most values a range may expand to (a typing slip such as step = 0.0001 stops here, not in memory).
 MAX_RANGE_VALUES = 100_000
@@ -75,6 +77,9 @@ class AnalysisSpec(Strict_):
             raise conflict("kg", "missing; give kg or cog")
         if self.kg is not None and self.cog is not None:
             raise conflict("cog", "contradicts kg; give kg or cog, not both")
+        if self.criteria is not None and self.criteria not in BUILTIN_SETS and not self.criteria.endswith(".toml"):
+            raise conflict("criteria", f"must be {' or '.join(BUILTIN_SETS)} or a path to a .toml file, "
+                                       f"got {self.criteria!r}")
         if self.heels is not None and not (-180 <= self.heels.start and self.heels.stop <= 180):
             raise conflict("heels", f"must lie within -180..180 deg, got {self.heels.start:g}..{self.heels.stop:g}")
         return self
@@ -87,6 +92,17 @@ class StudySpec(Strict_):
     parameters: dict[Text, ParameterValues] = Field(default_factory=dict,
                                                     description="parameter name -> values or range")
     analysis: AnalysisSpec
+    _source: str = PrivateAttr("")
+
+    @property
+    def source(self) -> str:
+        """The study file this came from (as given to :func:`validate_study`)."""
+        return self._source
+
+    def mesh_paths(self) -> list[str]:
+        """``[study] meshes`` made absolute against the study file's folder (empty with a generator)."""
+        base = os.path.dirname(os.path.abspath(self._source)) if self._source else os.getcwd()
+        return [os.path.normpath(os.path.join(base, m)) for m in self.study.meshes or []]
 
     def values(self, name: str) -> list[float]:
         """The values of one parameter (a range expanded)."""
@@ -99,4 +115,6 @@ def validate_study(data: dict[str, Any], source: str) -> StudySpec:
 
     Parameter names are not checked here: they depend on the generator, which checks them.
     """
-    return validate(StudySpec, data, source, ())
+    spec: StudySpec = validate(StudySpec, data, source, ())
+    spec._source = source
+    return spec
