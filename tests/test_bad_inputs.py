@@ -12,7 +12,7 @@ import os
 import pytest
 
 from meshhydro.errors import InputError
-from meshhydro.schemas import read_toml, validate_case, validate_criteria, validate_study
+from meshhydro.schemas import check_against_case, read_toml, validate_case, validate_criteria, validate_study
 
 F = "case.toml"
 
@@ -46,6 +46,43 @@ def test_the_reference_case_is_accepted():
     assert spec.conditions[1].cog == (5.9, 0.0, 0.95)
     assert spec.openings[0].at == (2.0, -1.2, 2.3)
     assert spec.source == F
+
+
+def test_every_new_key_is_accepted_and_typed():
+    data = copy.deepcopy(CASE)
+    data["hull"].update(flip_inside_out=True, merge_overlaps=False, close_holes=False, x_ref=6.0, x_aft=0.0,
+                        x_fore=12.0, name="Brindle")
+    data["water"] = {"kind": "fresh"}
+    data["tank"] = [TANK, {"name": "fuel", "mesh": "fuel.stl", "density": 0.85, "permeability": 0.98},
+                    {"name": "hull 2", "body": 1}]
+    data["compartment"] = [{"name": "hold", "box": TANK["box"], "permeability": 0.85}]
+    data["condition"][0].update(fills={"fore peak": 0.5}, soundings={"fuel": 0.3}, volumes={"hull 2": 0.1},
+                                flooded=["hold"])
+    data["windage"] = [{"name": "deckhouse", "area": 6.0, "centroid": [3.0, 2.5]}, {"name": "mast", "mesh": "m.stl"}]
+    data["weather"] = {"bilge": "sharp", "bilge_keel_area": 0.0, "pressure": 504.0, "lever_to": "half_draft"}
+    data["arm"] = [{"name": "wind", "kind": "constant", "a": 0.05},
+                   {"name": "turn", "kind": "cosine", "a": 0.1, "n": 2},
+                   {"name": "crowd", "kind": "table", "table": [[0, 0.1], [30, 0.08], [60, 0.0]]}]
+    data["criteria"] = {"set": "imo2008-weather"}
+    spec = validate_case(data, "/boats/brindle/case.toml")
+    assert spec.hull.x_fore == 12.0 and spec.water.rho == 1.000
+    assert spec.tanks[0].box == ((10.0, -1.0, 0.0), (12.0, 1.0, 1.0)) and spec.tanks[0].density == 1.025
+    assert spec.tanks[2].body == 1 and spec.tanks[2].permeability == 1.0
+    assert spec.conditions[0].fluid == "exact" and spec.conditions[1].fluid == "exact"
+    assert spec.windage[0].centroid == (3.0, 2.5)
+    assert [a.kind for a in spec.arms] == ["constant", "cosine", "table"] and spec.arms[1].n == 2.0
+    assert spec.resolve(spec.tanks[1].mesh) == "/boats/brindle/fuel.stl"
+
+
+def test_missing_names_are_numbered():
+    data = copy.deepcopy(CASE)
+    data["opening"][0].pop("name")
+    data["condition"][0].pop("name")
+    data["condition"][0]["items"][0].pop("name")
+    spec = validate_case(data, F)
+    assert (spec.openings[0].name, spec.conditions[0].name, spec.conditions[0].items[0].name) == \
+        ("opening 1", "condition 1", "item 1")
+    assert spec.conditions[0].fluid is None  # no tanks in this case
 
 
 # ---------------------------------------------------------------- silently ignored keys (issue 9)
@@ -356,6 +393,31 @@ def test_criteria_empty():
 def test_criteria_unknown_top_key():
     assert criteria_error({"kind": "gm", "minimum": 0.15}, nmae="x") == \
         "set.toml: nmae: unknown key; did you mean name?"
+
+
+def test_criteria_arm_missing_from_the_case():
+    case = validate_case(copy.deepcopy(CASE), F)
+    crit = validate_criteria({"criterion": [{"kind": "arm_equilibrium", "arm": "wind", "maximum": 16.0}]}, C)
+    with pytest.raises(InputError) as exc:
+        check_against_case(crit, case, C)
+    assert str(exc.value) == "set.toml: [criterion 1] arm: no arm named 'wind'; case.toml has no [[arm]]"
+
+
+def test_criteria_arm_misspelt():
+    data = copy.deepcopy(CASE)
+    data["arm"] = [{"name": "wind", "kind": "constant", "a": 0.05}]
+    case = validate_case(data, F)
+    crit = validate_criteria({"criterion": [{"kind": "arm_equilibrium", "arm": "wnd", "maximum": 16.0}]}, C)
+    with pytest.raises(InputError) as exc:
+        check_against_case(crit, case, C)
+    assert str(exc.value) == "set.toml: [criterion 1] arm: no arm named 'wnd'; did you mean wind?"
+
+
+def test_weather_criterion_without_weather_data():
+    case = validate_case(copy.deepcopy(CASE), F)
+    with pytest.raises(InputError) as exc:
+        check_against_case(validate_criteria({"criterion": [{"kind": "weather"}]}, C), case, C)
+    assert str(exc.value) == "set.toml: [criterion 1] kind: weather needs [weather] and [[windage]] in case.toml"
 
 
 # ---------------------------------------------------------------- study files

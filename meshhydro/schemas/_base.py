@@ -54,7 +54,7 @@ Vec3 = Annotated[tuple[Num, Num, Num], _vector(3, "x, y, z")]
 Vec2 = Annotated[tuple[Num, Num], _vector(2, "x, z")]
 
 
-class Strict_(BaseModel):
+class SchemaTable(BaseModel):
     """Base of every schema table: frozen, and unknown keys refused with the nearest valid key."""
 
     model_config = ConfigDict(frozen=True, extra="forbid", populate_by_name=False)

@@ -12,7 +12,7 @@ from typing import Annotated, Any, Literal, Optional
 from pydantic import Field, PrivateAttr, model_validator
 
 from ..frames import FRESH_WATER, SEA_WATER
-from ._base import (Angle, Flag, Fraction, Index, NonNeg, Num, Permeability, Pos, Strict_, Text, Vec2, Vec3,
+from ._base import (Angle, Flag, Fraction, Index, NonNeg, Num, Permeability, Pos, SchemaTable, Text, Vec2, Vec3,
                     conflict, fail, suggest, validate)
 
 #: Water kinds and their densities [t/m³] (standard values in stability practice).
@@ -40,7 +40,7 @@ def _box_ok(box: tuple[tuple[float, float, float], tuple[float, float, float]] |
 BoxCorners = Annotated[tuple[Vec3, Vec3], Field(description="[[x, y, z] min, [x, y, z] max] [m, hull frame]")]
 
 
-class HullSpec(Strict_):
+class HullSpec(SchemaTable):
     """``[hull]``: the mesh file and how to read it."""
 
     mesh: Text = Field(description="mesh file, relative to the case file")
@@ -65,7 +65,7 @@ class HullSpec(Strict_):
         return self
 
 
-class WaterSpec(Strict_):
+class WaterSpec(SchemaTable):
     """``[water]``: density [t/m³] or kind; both given must agree. Neither: sea water."""
 
     density: Optional[Pos] = Field(None, description="t/m³")
@@ -88,14 +88,14 @@ class WaterSpec(Strict_):
         return WATER_KINDS[self.kind or "sea"]
 
 
-class OpeningSpec(Strict_):
+class OpeningSpec(SchemaTable):
     """``[[opening]]``: a point through which water floods once immersed."""
 
     name: Optional[Text] = None
     at: Vec3 = Field(description="[x, y, z] m, hull frame")
 
 
-class ItemSpec(Strict_):
+class ItemSpec(SchemaTable):
     """One mass item of a condition."""
 
     name: Optional[Text] = None
@@ -104,7 +104,7 @@ class ItemSpec(Strict_):
     fsm: NonNeg = Field(0.0, description="free-surface moment i·ρ of a slack tank [t·m]")
 
 
-class ConditionSpec(Strict_):
+class ConditionSpec(SchemaTable):
     """``[[condition]]``: mass items, or displacement with cog; plus tank fills and flooded compartments."""
 
     name: Optional[Text] = None
@@ -142,7 +142,7 @@ class ConditionSpec(Strict_):
         return self
 
 
-class TankSpec(Strict_):
+class TankSpec(SchemaTable):
     """``[[tank]]``: a tank as a box, a mesh file or a body of the hull mesh."""
 
     name: Text
@@ -160,7 +160,7 @@ class TankSpec(Strict_):
         return self
 
 
-class CompartmentSpec(Strict_):
+class CompartmentSpec(SchemaTable):
     """``[[compartment]]``: a space that floods, as a box or a mesh file."""
 
     name: Text
@@ -175,7 +175,7 @@ class CompartmentSpec(Strict_):
         return self
 
 
-def _one_shape(spec: Strict_, keys: tuple[str, ...]) -> None:
+def _one_shape(spec: SchemaTable, keys: tuple[str, ...]) -> None:
     given = [k for k in keys if getattr(spec, k) is not None]
     if not given:
         raise conflict(keys[0], f"missing; give one of {', '.join(keys)}")
@@ -183,7 +183,7 @@ def _one_shape(spec: Strict_, keys: tuple[str, ...]) -> None:
         raise conflict(given[1], f"contradicts {given[0]}; give only one of {', '.join(keys)}")
 
 
-class WindageSpec(Strict_):
+class WindageSpec(SchemaTable):
     """``[[windage]]``: a lateral area above water, as area and centroid or as a mesh file."""
 
     name: Text
@@ -205,7 +205,7 @@ class WindageSpec(Strict_):
         return self
 
 
-class WeatherSpec(Strict_):
+class WeatherSpec(SchemaTable):
     """``[weather]``: data of the severe wind and rolling check."""
 
     bilge: Literal["round", "sharp"] = Field(description="bilge form")
@@ -215,7 +215,7 @@ class WeatherSpec(Strict_):
         "underwater_centre", description="wind lever measured to the underwater lateral centre or to half draft")
 
 
-class ConstantArm(Strict_):
+class ConstantArm(SchemaTable):
     """Heeling arm ``a`` [m] at every angle."""
 
     name: Text
@@ -223,7 +223,7 @@ class ConstantArm(Strict_):
     a: Pos = Field(description="m")
 
 
-class CosineArm(Strict_):
+class CosineArm(SchemaTable):
     """Heeling arm ``a cos^n φ`` [m]."""
 
     name: Text
@@ -232,7 +232,7 @@ class CosineArm(Strict_):
     n: NonNeg = Field(1.0, description="exponent of cos φ")
 
 
-class TableArm(Strict_):
+class TableArm(SchemaTable):
     """Heeling arm from a table of ``[angle deg, arm m]`` rows, angles strictly increasing."""
 
     name: Text
@@ -251,7 +251,7 @@ class TableArm(Strict_):
 ArmSpec = Annotated[ConstantArm | CosineArm | TableArm, Field(discriminator="kind")]
 
 
-class CriteriaRef(Strict_):
+class CriteriaRef(SchemaTable):
     """``[criteria]``: the criteria set to apply, a built-in name or a path to a criteria file."""
 
     set: Optional[Text] = Field(None, description="imo2008, imo2008-weather or path.toml")
@@ -264,7 +264,7 @@ class CriteriaRef(Strict_):
         return self
 
 
-class CaseSpec(Strict_):
+class CaseSpec(SchemaTable):
     """A validated case file. ``source`` is the file it came from (set by :func:`validate_case`)."""
 
     hull: HullSpec

@@ -9,7 +9,7 @@ from typing import Annotated, Any, Literal, Optional
 
 from pydantic import Field, model_validator
 
-from ._base import Angle, Flag, Num, Strict_, Text, conflict, fail, validate
+from ._base import Angle, Flag, Num, SchemaTable, Text, conflict, fail, suggest, validate
 
 #: Unit of the value each kind compares with its limit.
 KIND_UNITS = {
@@ -19,7 +19,7 @@ KIND_UNITS = {
 }
 
 
-class _Criterion(Strict_):
+class _Criterion(SchemaTable):
     """Fields every criterion has."""
 
     id: Optional[Text] = Field(None, description="label in reports; default the position, counted from 1")
@@ -153,7 +153,7 @@ CriterionSpec = Annotated[
     Field(discriminator="kind")]
 
 
-class CriteriaSpec(Strict_):
+class CriteriaSpec(SchemaTable):
     """A validated criteria file."""
 
     name: Optional[Text] = Field(None, description="title of the set")
@@ -182,3 +182,21 @@ def validate_criteria(data: dict[str, Any], source: str) -> CriteriaSpec:
         seen.add(cid)
         items.append(c if c.id else c.model_copy(update={"id": cid}))
     return spec.model_copy(update={"criteria": items})
+
+
+def check_against_case(criteria: CriteriaSpec, case: Any, source: str) -> None:
+    """Refuse a criteria set that needs what the case lacks: an arm it names that the case's ``[[arm]]``
+    entries do not hold, or a ``weather`` criterion without ``[weather]`` and ``[[windage]]``.
+    ``case`` is a :class:`~meshhydro.schemas.case.CaseSpec`; ``source`` names the criteria file."""
+    arms = [a.name for a in case.arms]
+    for k, c in enumerate(criteria.criteria):
+        name = getattr(c, "arm", None)
+        if name is not None and name not in arms:
+            have = f"; arms of {case.source or 'the case'}: {', '.join(arms)}" if arms else \
+                f"; {case.source or 'the case'} has no [[arm]]"
+            hint = suggest(name, arms) if arms else ""
+            raise fail(source, ["criterion", k, "arm"], f"no arm named {name!r}"
+                       f"{hint if hint.startswith('; did') else have}", CRITERIA_ARRAYS)
+        if c.kind == "weather" and (case.weather is None or not case.windage):
+            raise fail(source, ["criterion", k, "kind"], f"weather needs [weather] and [[windage]] in "
+                       f"{case.source or 'the case'}", CRITERIA_ARRAYS)

@@ -11,14 +11,14 @@ from typing import Annotated, Any, Literal, Optional, Union
 
 from pydantic import Discriminator, Field, PrivateAttr, Tag, model_validator
 
-from ._base import Num, Pos, Strict_, Text, Vec3, conflict, validate
+from ._base import Num, Pos, SchemaTable, Text, Vec3, conflict, validate
 from .case import BUILTIN_SETS
 
 #: Most values a range may expand to (a typing slip such as step = 0.0001 stops here, not in memory).
 MAX_RANGE_VALUES = 100_000
 
 
-class RangeSpec(Strict_):
+class RangeSpec(SchemaTable):
     """``{start, stop, step}``: start, start + step, ... up to stop inclusive."""
 
     start: Num
@@ -45,7 +45,7 @@ ParameterValues = Annotated[
     Discriminator(lambda v: "range" if isinstance(v, (dict, RangeSpec)) else "list")]
 
 
-class StudyHead(Strict_):
+class StudyHead(SchemaTable):
     """``[study]``: name and where the hulls come from (a generator or mesh files, exactly one)."""
 
     name: Text
@@ -62,7 +62,7 @@ class StudyHead(Strict_):
         return self
 
 
-class AnalysisSpec(Strict_):
+class AnalysisSpec(SchemaTable):
     """``[analysis]``: the loading and what to compute for every case."""
 
     displacement: Pos = Field(description="t")
@@ -85,7 +85,7 @@ class AnalysisSpec(Strict_):
         return self
 
 
-class StudySpec(Strict_):
+class StudySpec(SchemaTable):
     """A validated study file."""
 
     study: StudyHead
