@@ -312,3 +312,18 @@ def test_json_keeps_full_precision():
     v = 0.39999999999999997
     assert json.loads(to_json({"v": v}))["v"] == v
     assert json.loads(to_json({"v": float("nan")}))["v"] is None
+
+
+def test_plots_follow_the_suffix(tmp_path):
+    from meshhydro import plots
+
+    keys = ["draft", "displacement", "volume", "vcb", "kmt", "bmt", "lcb", "lcf", "awp", "wsa", "tpc", "mct",
+            "cb", "cp", "cm", "cwp"]
+    rows = [{k: 1.0 + 0.1 * i + 0.01 * j for j, k in enumerate(keys)} for i in range(3)]
+    plots.hydrostatic_curves(rows, str(tmp_path / "h.svg"))
+    plots.hydrostatic_curves(rows, str(tmp_path / "h.pdf"))
+    assert "<svg" in (tmp_path / "h.svg").read_text()
+    assert (tmp_path / "h.pdf").read_bytes().startswith(b"%PDF-")
+    with pytest.raises(InputError, match=r"h\.jpg: cannot write a figure with suffix \.jpg; use \.png, \.svg, \.pdf"):
+        plots.hydrostatic_curves(rows, str(tmp_path / "h.jpg"))
+    assert sorted(os.listdir(tmp_path)) == ["h.pdf", "h.svg"]
