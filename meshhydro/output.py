@@ -29,11 +29,12 @@ __all__ = ["write_atomic", "save_atomic", "save_figure", "figure_format", "emit"
            "remove_stale", "cleanup_temps", "text_table", "key_values", "to_csv", "to_json", "csv_number",
            "format_column", "FIGURE_FORMATS", "CSV_DECIMALS"]
 
-#: Figure formats written by :func:`save_figure` unless a caller allows others (suffix -> matplotlib format).
+#: Figure formats (file suffixes, also matplotlib's format names) :func:`save_figure` writes by default.
 FIGURE_FORMATS = ("png", "svg", "pdf")
 _LIVE: set[str] = set()
 _LOCK = threading.RLock()  # re-entrant: the signal handler may run while the main thread holds it
 _HANDLED = False
+_PREVIOUS: dict[int, Any] = {}  # signal -> handler in place before ours, called after the cleanup
 
 
 # ---------------------------------------------------------------- temporaries and signals
@@ -46,9 +47,6 @@ def _on_signal(signum: int, frame: Any) -> None:
     else:
         signal.signal(signum, signal.SIG_DFL)
         os.kill(os.getpid(), signum)
-
-
-_PREVIOUS: dict[int, Any] = {}
 
 
 def _install_handlers() -> None:
