@@ -1,11 +1,11 @@
-"""Matplotlib figures (PNG). Imported only by the views and the CLI."""
+"""Matplotlib figures (PNG, SVG or PDF by the suffix asked for). Imported only by the views and the CLI."""
 from __future__ import annotations
 
 from typing import Any, Sequence
 
 import numpy as np
 
-from .output import save_atomic
+from .output import save_figure
 from .criteria import CAUTION_SHORT as CAUTION
 
 
@@ -23,7 +23,7 @@ def _save(fig: Any, path: str, dpi: int = 130) -> None:
     import matplotlib.pyplot as plt
 
     try:
-        save_atomic(path, lambda p: fig.savefig(p, dpi=dpi, format="png"))
+        save_figure(path, fig, dpi=dpi)
     finally:
         plt.close(fig)
 
