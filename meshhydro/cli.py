@@ -64,7 +64,7 @@ def _water_args(p: argparse.ArgumentParser) -> None:
 
 
 def _load(args: argparse.Namespace, path: str | None = None):
-    from .hull import load_hull
+    from .vessel import load_hull
 
     return load_hull(path or args.mesh, units=args.units, forward=args.forward, up=args.up,
                      offset=_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,

@@ -89,7 +89,7 @@ def cmd_offsets(args: argparse.Namespace) -> int:
     if args.loft or args.compare:
         import trimesh
 
-        from .hull import load_hull
+        from .vessel import load_hull
 
         v, f = S.loft_offsets(off)
         lofted = load_hull(trimesh.Trimesh(v, f, process=False), name="lofted from " + args.table)

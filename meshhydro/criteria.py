@@ -204,7 +204,7 @@ def evaluate(curve: Any, cset: CriteriaSet = IMO_2008_GENERAL, *, sides: tuple[i
                 elif c.kind == "gz_at":
                     attained = sign * curve.gz_at(sign * c.angle)
                 elif c.kind == "gz_max_beyond":
-                    x, y = curve._side(sign)
+                    x, y = curve.side(sign)
                     m = x >= c.angle - 1e-9
                     if m.any():
                         attained = float(y[m].max())

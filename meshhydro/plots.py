@@ -65,7 +65,7 @@ def righting_curve(curve: Any, path: str, *, title: str = "", criteria: Any = No
     fig, ax = _figure(figsize=(10, 6))
     h, gz = curve.heel, curve.gz
     fine = np.linspace(h[0], h[-1], max(400, 4 * len(h)))
-    sp = curve._spline()
+    sp = curve.interpolant()
     ax.plot(fine, sp(fine), color="tab:blue", lw=2, label="GZ (free trim)" if curve.free_trim else "GZ (fixed trim)")
     ax.plot(h, gz, ".", color="tab:blue", ms=3)
     ax.axhline(0, color="k", lw=0.8)
