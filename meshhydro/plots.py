@@ -223,3 +223,9 @@ def convergence_plot(rows: Sequence[dict[str, Any]], path: str, *, title: str = 
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     _save(fig, path)
+
+
+def draw(figure: Any, path: str) -> None:
+    """Draw a document :class:`~meshhydro.document.Figure` to a PNG at ``path`` with the view it names."""
+    views = {"righting_curve": righting_curve, "cross_curves": cross_curves, "hydrostatic_curves": hydrostatic_curves}
+    views[figure.view](figure.data, path, title=figure.title)

@@ -26,6 +26,7 @@ from typing import Any, Sequence
 import numpy as np
 
 from .errors import InputError
+from .frames import SEA_WATER
 from .output import to_json
 
 MARKER = ".meshhydro-sweep"
@@ -71,23 +72,12 @@ class Trace:
 
 
 def heel_trace(hull: Any, displacement: float, cog: Sequence[float], heels: Sequence[float], *,
-               density: float = 1.025, fsm: float = 0.0, label: str = "", progress: Any = None) -> Trace:
+               density: float = SEA_WATER, fsm: float = 0.0, label: str = "", progress: Any = None) -> Trace:
     """Free-trim positions over ``heels`` [deg] with B, M and G in the hull frame."""
     c = hull.righting_curve(displacement, cog, heels=heels, density=density, fsm=fsm, progress=progress)
     m = c.cob + c.bm[:, None] * c.up
     return Trace(heel=c.heel, gz=c.gz, draft=c.draft, trim=c.trim, cob=c.cob, metacentre=m, up=c.up, bm=c.bm,
                  cog=c.cog, displacement=float(displacement), density=c.density, label=label)
-
-
-def parse_size(text: str) -> tuple[int, int]:
-    """``'WxH'`` -> (W, H) in pixels, each 64 to 4096."""
-    try:
-        w, h = (int(x) for x in text.lower().split("x"))
-    except ValueError:
-        raise InputError(f"--size {text!r} is not WIDTHxHEIGHT, e.g. 960x720") from None
-    if not (64 <= w <= 4096 and 64 <= h <= 4096):
-        raise InputError(f"--size {text!r}: width and height must be 64 to 4096 pixels")
-    return w, h
 
 
 def _prepare_target(out: str) -> str:
