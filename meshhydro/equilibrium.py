@@ -22,7 +22,7 @@ from .solver import (
     State,
     check_load,
     find_loll,
-    metacentric_heights,
+    load_metacentric_heights,
     newton,
     residuals,
     solve_volume,
@@ -138,7 +138,7 @@ def _loll(ev: Evaluator, v0: float, load: Load, upright: State) -> tuple[State, 
     st = find_loll(ev, v0, load, upright)
     if st is None:
         raise NotConvergedError("upright GM is negative and no stable heeled position was found: the vessel capsizes")
-    gm0 = metacentric_heights(upright, load.centre(upright.heel, upright.trim))[0]
+    gm0 = load_metacentric_heights(upright, load)[0]
     note = (f"upright GM is negative ({gm0:.4f} m): the vessel lolls to "
             f"{abs(st.heel):.2f}° (either side for a symmetric load); this is not a stable upright condition")
     return st, note
@@ -158,7 +158,7 @@ def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel
             f"{abs(res.residual[2]) * ev.L:.2e} m)")
     st = res.state
     note = ""
-    loll = bool(metacentric_heights(st, load.centre(st.heel, st.trim))[0] < 0)
+    loll = bool(load_metacentric_heights(st, load)[0] < 0)
     if loll:
         st, note = _loll(ev, v0, load, st)
     elif abs(st.heel) > tol.LIST_NOTE:
@@ -169,7 +169,7 @@ def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel
 def _result(hull: Hull, ev: Evaluator, load: Load, st: State, rho: float, v0: float, iterations: int,
             loll: bool, note: str) -> Equilibrium:
     g = load.centre(st.heel, st.trim)
-    gmt, gml = metacentric_heights(st, g)
+    gmt, gml = load_metacentric_heights(st, load)
     r = residuals(st, v0, load, ev.L)
     n = st.cut.normal
     xa, xf = float(st.cut.waterline_x[0]), float(st.cut.waterline_x[1])

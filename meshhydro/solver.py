@@ -146,12 +146,26 @@ def check_load(hull: Hull, displacement: float, density: float) -> tuple[float, 
     return rho, v0
 
 
-def metacentric_heights(st: State, g: np.ndarray) -> tuple[float, float]:
-    """GMt and GMl [m] at a floating position for G (3,) [m]: BM + (B - G) . up."""
+def metacentric_heights(st: State, g: np.ndarray, dg: np.ndarray | None = None) -> tuple[float, float]:
+    """GMt and GMl [m] at a floating position for G (3,) [m]: BM + (B - G) . up.
+
+    ``dg`` (3, 2) [m per rad] is the motion of G with heel and trim (a load's
+    ``centre_derivatives``); it adds dG/dq . dup/dq, the loss of GM to a shifting load.
+    """
     c = st.cut
     v = max(c.volume, tol.TINY_VOLUME)
     bg = (c.centroid - g) @ c.normal
-    return c.inertia_t / v + bg, c.inertia_l / v + bg
+    gmt, gml = c.inertia_t / v + bg, c.inertia_l / v + bg
+    if dg is not None:
+        d_phi, d_th = up_derivatives(st.heel, st.trim)
+        gmt += float(dg[:, 0] @ d_phi)
+        gml += float(dg[:, 1] @ d_th)
+    return gmt, gml
+
+
+def load_metacentric_heights(st: State, load: Load) -> tuple[float, float]:
+    """GMt and GMl [m] of a load at a floating position, its shift of G with the attitude included."""
+    return metacentric_heights(st, load.centre(st.heel, st.trim), load.centre_derivatives(st.heel, st.trim))
 
 
 def freeboard(st: State, K: np.ndarray, pts: np.ndarray) -> np.ndarray:

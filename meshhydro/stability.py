@@ -30,7 +30,7 @@ from .solver import (
     State,
     check_load,
     freeboard,
-    metacentric_heights,
+    load_metacentric_heights,
     solve_volume,
     step_angles,
     upright_free_trim,
@@ -333,7 +333,7 @@ def _assemble(hull: Hull, ev: Evaluator, load: Load, hs: np.ndarray, states: lis
         ops[o.name] = np.array([freeboard(s, ev.K, pt)[0] for s in states])
     gm_up = None
     if upright is not None:
-        gm_up = float(metacentric_heights(upright, load.centre(upright.heel, upright.trim))[0])
+        gm_up = float(load_metacentric_heights(upright, load)[0])
     return RightingCurve(
         heel=hs, gz=gz, kn=kn, draft=np.array([s.depth for s in states]), trim=np.array([s.trim for s in states]),
         cob=np.array([s.cut.centroid for s in states]), up=np.array([s.cut.normal for s in states]),
