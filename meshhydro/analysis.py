@@ -7,7 +7,7 @@ call these functions and render the :class:`~meshhydro.document.Document` they r
 
 Public: :class:`CaseInput`, :func:`from_case`, :func:`from_mesh`, :func:`choose_sides`,
 :func:`curve_angles`, :func:`check_angles`, :func:`float_analysis`, :func:`righting_analysis`,
-:func:`criteria_analysis`, :func:`cross_analysis`, :func:`table_analysis`.
+:func:`criteria_analysis`, :func:`cross_analysis`, :func:`table_analysis`, :func:`check_analysis`.
 """
 from __future__ import annotations
 
@@ -25,6 +25,7 @@ from .errors import InputError
 from .frames import SEA_WATER
 from .hydrostatics import FIELDS, UNITS
 from .loading import Condition, Opening, condition, read_case
+from .mesh import HealthReport
 from .stability import CrossCurves, RightingCurve, cross_curves
 from .vessel import FloatingHull
 
@@ -293,3 +294,31 @@ def table_analysis(hull: FloatingHull, drafts: np.ndarray, *, heel: float = 0.0,
                          f"(draft at x = {hull.x_ref:.3f} m on the centreline, above z = 0)", vessel=hull.name,
                    sections=[sec], cautions=[CAUTION], primary="hydrostatics", data=rows, meta={"density": density})
     return rows, doc
+
+
+# ---------------------------------------------------------------------------- mesh check
+
+
+def check_analysis(rep: HealthReport) -> Document:
+    """The health report of a mesh as a document (verdict: usable or not)."""
+    lo, hi = rep.bounds
+    vals = [("vertices", "vertices", rep.n_vertices, ""), ("faces", "faces", rep.n_faces, ""),
+            ("welded_vertices", "welded duplicates", rep.welded_vertices, "vertices"),
+            ("extent", "extent x, y, z", "  ".join(f"{e:.4f}" for e in rep.extent), "m"),
+            ("z_range", "z range", f"{lo[2]:.4f} to {hi[2]:.4f}", "m"), ("closed", "closed", rep.closed, ""),
+            ("consistent_winding", "consistent winding", rep.consistent_winding, ""),
+            ("degenerate_faces", "degenerate faces", len(rep.degenerate_faces), ""),
+            ("duplicate_faces", "duplicate faces", len(rep.duplicate_faces), ""),
+            ("bodies", "bodies", len(rep.bodies), ""), ("volume", "total volume", rep.volume, "m³")]
+    lines = []
+    for b in rep.bodies:
+        vol = "open" if b.volume is None else f"{b.volume:.6g} m³"
+        lines.append(f"  body {b.index}: {b.n_faces} faces, volume {vol}, "
+                     f"x {b.bounds[0][0]:.3f}..{b.bounds[1][0]:.3f}, y {b.bounds[0][1]:.3f}..{b.bounds[1][1]:.3f}, "
+                     f"z {b.bounds[0][2]:.3f}..{b.bounds[1][2]:.3f} m")
+    lines += [f"  rim {i}: {r.n_edges} edges, z {r.z_min:.4f} to {r.z_max:.4f} m (face {r.first_face})"
+              for i, r in enumerate(rep.rims)]
+    lines += [f"warning: {w}" for w in rep.warnings] + [f"problem: {p}" for p in rep.problems]
+    sec = Section("mesh", "", values=[Quantity(k, label, v, u) for k, label, v, u in vals], notes=lines)
+    return Document(title=f"mesh check: {rep.source}", vessel=str(rep.source), sections=[sec], verdict=rep.usable,
+                    verdict_text="usable" if rep.usable else "NOT usable", primary="mesh", data=rep.to_dict())

@@ -60,7 +60,7 @@ def hydrostatic_curves(rows: Sequence[dict[str, float]], path: str, *, title: st
     _save(fig, path)
 
 
-def righting_curve(curve: Any, path: str, *, title: str = "", criteria: Any = None) -> None:
+def righting_curve(curve: Any, path: str, *, title: str = "") -> None:
     """GZ curve with the GM tangent to 57.3°, and marks for the derived angles on each side."""
     fig, ax = _figure(figsize=(10, 6))
     h, gz = curve.heel, curve.gz

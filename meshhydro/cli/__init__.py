@@ -20,9 +20,8 @@ from . import sections as cli_sections
 from . import stability as cli_stability
 from . import sweep as cli_sweep
 from .common import load_mesh, mesh_args, out_args, output, parse_range, parse_vec, water_args, write
-from ..analysis import table_analysis
+from ..analysis import check_analysis, table_analysis
 from ..criteria import CAUTION
-from ..output import key_values, to_json
 
 # ---------------------------------------------------------------------------- check
 
@@ -33,37 +32,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     md, rep = check_mesh(args.mesh, units=args.units, forward=args.forward, up=args.up,
                          offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
                          merge_overlaps=args.merge_overlaps)
-    if args.format == "json":
-        write(args, to_json(rep.to_dict()))
-    else:
-        lines = [f"mesh check: {rep.source}"]
-        lo, hi = rep.bounds
-        lines.append(key_values([
-            ("vertices", rep.n_vertices, ""),
-            ("faces", rep.n_faces, ""),
-            ("welded duplicates", rep.welded_vertices, "vertices"),
-            ("extent x, y, z", "  ".join(f"{e:.4f}" for e in rep.extent), "m"),
-            ("z range", f"{lo[2]:.4f} to {hi[2]:.4f}", "m"),
-            ("closed", rep.closed, ""),
-            ("consistent winding", rep.consistent_winding, ""),
-            ("degenerate faces", len(rep.degenerate_faces), ""),
-            ("duplicate faces", len(rep.duplicate_faces), ""),
-            ("bodies", len(rep.bodies), ""),
-            ("total volume", rep.volume, "m³"),
-        ]).rstrip())
-        for b in rep.bodies:
-            vol = "open" if b.volume is None else f"{b.volume:.6g} m³"
-            lines.append(f"  body {b.index}: {b.n_faces} faces, volume {vol}, "
-                         f"x {b.bounds[0][0]:.3f}..{b.bounds[1][0]:.3f}, y {b.bounds[0][1]:.3f}..{b.bounds[1][1]:.3f}, "
-                         f"z {b.bounds[0][2]:.3f}..{b.bounds[1][2]:.3f} m")
-        for i, r in enumerate(rep.rims):
-            lines.append(f"  rim {i}: {r.n_edges} edges, z {r.z_min:.4f} to {r.z_max:.4f} m (face {r.first_face})")
-        for w in rep.warnings:
-            lines.append(f"warning: {w}")
-        for pr in rep.problems:
-            lines.append(f"problem: {pr}")
-        lines.append("verdict: usable" if rep.usable else "verdict: NOT usable")
-        write(args, "\n".join(lines) + "\n")
+    output(args, check_analysis(rep))
     if not rep.usable:
         print(f"meshhydro: {rep.problems[0]}", file=sys.stderr)
         return 3
