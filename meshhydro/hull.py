@@ -104,7 +104,7 @@ class Hull:
 
         v = self.vertices
         d, _ = cKDTree(v).query(v * np.array([1.0, -1.0, 1.0]), k=1)
-        return bool(np.max(d) <= tol.SYMMETRY * max(self.size, 1e-9))
+        return bool(np.max(d) <= tol.SYMMETRY * max(self.size, tol.TINY_LENGTH))
 
     @cached_property
     def deck_edge(self) -> np.ndarray:

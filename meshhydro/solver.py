@@ -65,7 +65,7 @@ class Evaluator:
         self.prep: kernel.Prepared = hull.prepared
         self.K = np.array([hull.x_ref, 0.0, 0.0])
         self.count = 0
-        self.L = max(hull.length, 1e-9)
+        self.L = max(hull.length, tol.TINY_LENGTH)
         #: hull vertices relative to K (n, 3) [m], for the extent of the hull along a normal
         self.rel = self.prep.vertices + (self.prep.origin - self.K)
 

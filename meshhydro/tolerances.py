@@ -59,6 +59,8 @@ CRITERION_SLACK = 1e-12
 UPRIGHT = 1e-12
 
 # ---------------------------------------------------------------- geometry
+#: Floor for a length used as a scale [m] (a degenerate hull of zero extent).
+TINY_LENGTH = 1e-9
 #: A mesh is port-starboard symmetric when every mirrored vertex lies within this fraction of its size.
 SYMMETRY = 1e-6
 #: A load is on the centreline when |TCG| is below this [m].

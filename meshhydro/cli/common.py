@@ -15,6 +15,7 @@ from ..analysis import CaseInput, from_case, from_mesh
 from ..document import Document
 from ..errors import InputError
 from ..frames import FRESH_WATER, SEA_WATER
+from ..tolerances import ANGLE_SLACK
 from ..loading import Opening
 from ..output import emit
 from ..progress import Progress
@@ -49,7 +50,7 @@ def parse_range(spec: str, what: str = "range") -> np.ndarray:
             a, b, s = (float(x) for x in parts)
             if not all(math.isfinite(x) for x in (a, b, s)) or s <= 0 or b < a:
                 raise ValueError
-            n = int(math.floor((b - a) / s + 1e-9)) + 1
+            n = int(math.floor((b - a) / s + ANGLE_SLACK)) + 1  # STOP included despite rounding
             if n > 100000:
                 raise InputError(f"{what} {spec!r} has {n} values; use a coarser step")
             vals = a + s * np.arange(n)
