@@ -90,7 +90,7 @@ def _prepare_target(out: str) -> str:
         if not os.path.isdir(out):
             raise InputError(f"{out}: exists and is not a folder")
         if os.listdir(out) and not os.path.exists(os.path.join(out, MARKER)):
-            raise InputError(f"{out}: folder is not empty and holds no earlier sweep; choose another --out")
+            raise InputError(f"{out}: folder is not empty and holds no earlier sweep; choose another folder")
     return tempfile.mkdtemp(prefix="." + os.path.basename(out) + ".", dir=parent)
 
 

@@ -210,6 +210,10 @@ def test_free_surface_virtual_rise():
     solid = hull.equilibrium(cond.displacement, cond.cog)
     fluid = hull.equilibrium(cond.displacement, cond.cog, fsm=cond.fsm)
     assert solid.gmt - fluid.gmt == pytest.approx(fsm1 / cond.displacement, rel=1e-9)
+    # box closed forms: T = Δ / (ρ L B) = 1.5 m, KB = T/2, BM = B²/(12 T) = 2 m, GM = KB + BM - KG
+    kg = (180.0 * 2.0 + 4.5 * 0.5) / 184.5
+    assert solid.gmt == pytest.approx(0.75 + 2.0 - kg, rel=1e-9)
+    assert fluid.gmt == pytest.approx(0.75 + 2.0 - kg - fsm1 / 184.5, rel=1e-9)
     assert cond.kg_fluid - cond.kg == pytest.approx(fsm1 / cond.displacement)
 
 
@@ -258,7 +262,10 @@ def test_user_criteria_file(tmp_path, box_hull):
     c = box_hull.righting_curve(RHO * 180, (10.0, 0.0, 2.0), heels=np.arange(0, 181.0, 2.0))
     rep = evaluate(c, cs)
     assert [r.id for r in rep.results] == ["R", "2"]
-    assert rep.results[1].attained == pytest.approx(c.gz_at(20.0))
+    # wall-sided box (bilge emerges at atan(T / (B/2)) = 26.6°): T = 1.5, BM = 2, GM = 0.75 + 2 - 2 (textbook)
+    phi = math.radians(20.0)
+    assert rep.results[1].attained == pytest.approx(math.sin(phi) * (0.75 + 0.5 * 2.0 * math.tan(phi) ** 2), rel=1e-9)
+    assert rep.results[1].passed
     bad = tmp_path / "bad.toml"
     bad.write_text('[[criterion]]\nkind = "bogus"\nminimum = 1\n')
     with pytest.raises(InputError, match="criterion 1: kind must be one of"):
