@@ -41,6 +41,10 @@ def virtual_cog(cog: np.ndarray | tuple[float, float, float], fsm: float, displa
     return np.asarray(cog, dtype=float) + np.array([0.0, 0.0, float(fsm) / float(displacement)])
 
 
+_NO_SHIFT = np.zeros((3, 2))
+_NO_SHIFT.flags.writeable = False
+
+
 @dataclass(frozen=True, eq=False)
 class FixedLoad:
     """A load whose G does not move with the attitude: solid G plus the virtual rise FSM / Δ.
@@ -86,4 +90,4 @@ class FixedLoad:
         return self._g
 
     def centre_derivatives(self, heel: float, trim: float) -> np.ndarray:
-        return np.zeros((3, 2))
+        return _NO_SHIFT

@@ -5,8 +5,9 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from .output import save_atomic
 from .criteria import CAUTION_SHORT as CAUTION
+from .hull import Hull
+from .output import save_atomic
 
 
 
@@ -115,7 +116,7 @@ def cross_curves(cc: Any, path: str, *, title: str = "") -> None:
     _save(fig, path)
 
 
-def largest_section(hull: Any, n: int = 41) -> tuple[float, np.ndarray]:
+def largest_section(hull: Hull, n: int = 41) -> tuple[float, np.ndarray]:
     """x [m] and outline segments (k, 2, 3) of the transverse section of largest area."""
     from .sections import section_segments, sectional_areas
 
@@ -125,7 +126,7 @@ def largest_section(hull: Any, n: int = 41) -> tuple[float, np.ndarray]:
     return xb, section_segments(hull, xb)
 
 
-def section_view(hull: Any, traces: Sequence[Any], path: str, *, size: tuple[int, int] = (960, 720),
+def section_view(hull: Hull | Sequence[Hull], traces: Sequence[Any], path: str, *, size: tuple[int, int] = (960, 720),
                  current: int | None = None, labels: Sequence[str] | None = None) -> None:
     """The transverse-plane figure: outline, waterlines, trace of B, metacentre locus, G and GZ.
 
