@@ -48,7 +48,8 @@ class Equilibrium:
     up : (3,)
         Earth's upward vertical in the hull frame.
     cog, cog_fluid : (3,) [m]
-        Centre of gravity, and the same raised by the free-surface correction.
+        Centre of gravity (the load's solid ``cog`` when it has one), and G as the solver
+        used it at this position (raised by the free-surface correction, fluid shifted).
     gmt, gml : float [m]
         Metacentric heights at the equilibrium (with the free-surface correction, "fluid").
     stable : bool

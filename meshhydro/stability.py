@@ -62,7 +62,8 @@ class RightingCurve:
         Kernel evaluations spent at each angle.
     displacement, density : float
     cog : (3,) [m]
-        Centre of gravity used (free-surface corrected).
+        Centre of gravity used (free-surface corrected); for a load whose G moves with the
+        attitude, G at the first angle of the curve.
     free_trim : bool
     gm_upright : float or None [m]
         GMt from the hydrostatics of the upright free-trim position (when 0° is on the curve).
