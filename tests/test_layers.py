@@ -101,3 +101,19 @@ def test_renderers_write_what_the_document_holds():
     with pytest.raises(InputError, match="unknown output format"):
         render(_doc(), "xml")
     assert math.isfinite(d["sections"][0]["values"][0]["value"])
+
+
+def test_analysis_decides_sides_and_angles(box_hull):
+    from meshhydro.analysis import check_angles, choose_sides, curve_angles
+    from meshhydro.loading import condition
+
+    # a port-starboard symmetric hull with G on the centreline heels the same both ways (common practice:
+    # one side suffices); G off the centreline needs both
+    assert choose_sides(box_hull, condition(100.0, (10.0, 0.0, 2.0))) == (1,)
+    assert choose_sides(box_hull, condition(100.0, (10.0, 0.1, 2.0))) == (1, -1)
+    assert choose_sides(box_hull, condition(100.0, (10.0, 0.0, 2.0)), "port") == (-1,)
+    assert list(curve_angles(np.array([10.0, 20.0]), (1, -1))) == [-20.0, -10.0, 0.0, 10.0, 20.0]
+    with pytest.raises(InputError, match="heels takes angles from 0 to 180°"):
+        check_angles(np.array([0.0, 190.0]), 0.0, 180.0)
+    with pytest.raises(InputError, match="direction must be"):
+        choose_sides(box_hull, condition(100.0, (10.0, 0.0, 2.0)), "sideways")
