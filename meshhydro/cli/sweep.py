@@ -8,7 +8,7 @@ from typing import Any
 
 from ..analysis import check_angles
 from ..errors import InputError
-from .common import load_source, out_args, parse_range, parse_size, progress, source_args
+from .common import load_source, parse_range, parse_size, progress, source_args
 
 
 def cmd_sweep(args: argparse.Namespace) -> int:
