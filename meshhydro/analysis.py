@@ -231,7 +231,10 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
                       free_trim: bool = True, progress: Progress = None) -> tuple[Report, Document]:
     """A criteria set checked on the condition's GZ curve, and its report (verdict set)."""
     curve, sides = solve_curve(inp, heels, direction=direction, free_trim=free_trim, progress=progress)
-    rep = evaluate(curve, cset, sides=sides, openings=inp.openings)
+    i0 = int(np.argmin(np.abs(curve.heel)))  # upright is always on the curve
+    upright = inp.hull.hydrostatics(float(curve.draft[i0] / curve.up[i0, 2]), heel=0.0, trim=float(curve.trim[i0]),
+                                    density=inp.density)
+    rep = evaluate(curve, cset, sides=sides, hydrostatics=upright, openings=inp.openings)
     keys = ["id", "side", "criterion", "unit", "required", "attained", "margin", "result", "note"]
     rows = [{"id": r.id, "side": r.side, "criterion": r.text, "unit": r.unit, "required": r.required,
              "attained": r.attained, "margin": r.margin, "result": "pass" if r.passed else "FAIL", "note": r.note}

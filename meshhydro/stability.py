@@ -250,11 +250,10 @@ class RightingCurve:
 
 
 def _roots(sp: Any, a: float, b: float) -> list[float]:
+    """Roots [deg] of a piecewise polynomial between a and b (none for a spline type without roots:
+    the callers then interpolate linearly between the computed points)."""
     lo, hi = min(a, b), max(a, b)
-    try:
-        rr = sp.roots(extrapolate=False) if hasattr(sp, "roots") else []
-    except Exception:
-        rr = []
+    rr = sp.roots(extrapolate=False) if hasattr(sp, "roots") else []
     return [float(r) for r in np.atleast_1d(rr) if lo - tol.ROOT_SLACK <= r <= hi + tol.ROOT_SLACK]
 
 

@@ -117,3 +117,22 @@ def test_analysis_decides_sides_and_angles(box_hull):
         check_angles(np.array([0.0, 190.0]), 0.0, 180.0)
     with pytest.raises(InputError, match="direction must be"):
         choose_sides(box_hull, condition(100.0, (10.0, 0.0, 2.0)), "sideways")
+
+
+def test_a_new_criterion_kind_sees_the_upright_hydrostatics(box_hull):
+    from meshhydro.analysis import criteria_analysis, from_mesh
+    from meshhydro.criteria import CriteriaSet, NoParams, Outcome, register
+
+    @register("test_kmt", unit="m")
+    def _kmt(ctx, p: NoParams) -> Outcome:
+        return Outcome(ctx.hydrostatics.kmt)
+
+    try:
+        cset = CriteriaSet("t", "test", (Criterion("K", "test_kmt", 2.7),))
+        inp = from_mesh(box_hull, "box.stl", RHO * 180.0, (10.0, 0.0, 2.0), density=RHO)
+        rep, doc = criteria_analysis(inp, cset, np.arange(0.0, 31.0, 10.0))
+        # box closed forms: T = 1.5 m, KB = T/2 = 0.75 m, BM = B²/(12 T) = 2 m, KM = 2.75 m
+        assert rep.results[0].attained == pytest.approx(2.75, rel=1e-9) and rep.passed
+        assert doc.verdict is True and "verdict: all criteria met" in render(doc, "text")
+    finally:
+        del REGISTRY["test_kmt"]
