@@ -225,9 +225,6 @@ def _vanishing(ctx: Context, p: NoParams) -> Outcome:
     v = ctx.curve.vanishing_angle(ctx.sign)
     return Outcome(v) if v is not None else Outcome(None, "no vanishing angle within the curve", at_least=ctx.top)
 
-
-#: kind name -> unit (kept for callers that list the kinds)
-KINDS = {k: v.unit for k, v in REGISTRY.items()}
 @dataclass(frozen=True)
 class Criterion:
     """One requirement: a registered ``kind``, its typed ``params`` and the minimum value (kind's unit)."""
