@@ -22,10 +22,12 @@ from .errors import (
     OpenRimError,
 )
 from .frames import FRESH_WATER, SEA_WATER
-from .hull import Hull, load_hull
+from .hull import Hull
+from .load import FixedLoad, Load
 from .hydrostatics import Hydrostatics
 from .kernel import Cut
 from .mesh import HealthReport, check_mesh
+from .vessel import FloatingHull, load_hull
 
 __version__ = "0.1.0"
 
@@ -42,7 +44,9 @@ __all__ = [
     "NotConvergedError",
     "OpenRimError",
     "SEA_WATER",
-    "Hull",
+    "FixedLoad",
+    "FloatingHull",
+    "Load",
     "check_mesh",
     "load_hull",
     "__version__",

@@ -27,17 +27,31 @@ A user set is a TOML file of our own format::
     # "angle_of_max" (angle of largest GZ [deg]), "gm" (initial GM [m]),
     # "range" (range of positive stability [deg]), "vanishing" (angle of vanishing stability [deg])
 
+Kinds live in a registry (:data:`REGISTRY`): a kind is a function of a :class:`Context`
+(the curve on one side, hydrostatics, openings, and room for windage and heeling arms)
+and its typed parameters (a frozen dataclass whose fields are the TOML keys). A new kind::
+
+    @register("gz_area_ratio", unit="-", params=MyParams)
+    def _ratio(ctx: Context, p: MyParams) -> Outcome:
+        return Outcome(...)
+
 Every report carries :data:`CAUTION`.
 """
 from __future__ import annotations
 
+import dataclasses
 import math
 import os
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, Callable, Mapping
 
+import numpy as np
+
+from . import tolerances as tol
 from .errors import InputError
-from .loading import read_toml
+from .hydrostatics import Hydrostatics
+from .loading import Opening, read_toml
+from .stability import RightingCurve
 
 #: The caution that every output a safety decision could rest on carries.
 CAUTION = ("CAUTION: a design aid, not an approval. The flag administration, class rules, local codes and a "
@@ -46,33 +60,192 @@ CAUTION = ("CAUTION: a design aid, not an approval. The flag administration, cla
 CAUTION_SHORT = ("Design aid, not an approval: flag administration, class rules, local codes "
                  "and a qualified naval architect decide.")
 
-KINDS = {
-    "area": "m·rad",
-    "gz_at": "m",
-    "gz_max_beyond": "m",
-    "angle_of_max": "deg",
-    "gm": "m",
-    "range": "deg",
-    "vanishing": "deg",
-}
+
+# ---------------------------------------------------------------------------- context and parameters
+
+
+@dataclass(frozen=True, eq=False)
+class Context:
+    """What a criterion may look at, for one side of one curve.
+
+    Attributes
+    ----------
+    curve : RightingCurve
+    sign : int
+        +1 heeling to starboard, -1 to port.
+    hydrostatics : Hydrostatics or None
+        Upright particulars of the condition, when the caller has them.
+    openings : tuple of Opening
+    windage : object or None
+        Room for a wind model (lateral area, its centre, pressure) for weather criteria.
+    heeling_arms : mapping name -> callable
+        Room for heeling-arm curves: arm [m] as a function of heel (k,) [deg] on this side.
+    """
+
+    curve: RightingCurve
+    sign: int
+    hydrostatics: Hydrostatics | None = None
+    openings: tuple[Opening, ...] = ()
+    windage: Any = None
+    heeling_arms: Mapping[str, Callable[[np.ndarray], np.ndarray]] = field(default_factory=dict)
+
+    @property
+    def side(self) -> str:
+        return "starboard" if self.sign > 0 else "port"
+
+    @property
+    def top(self) -> float:
+        """Largest computed angle on this side [deg]."""
+        return float(max(self.curve.heel * self.sign))
+
+    @property
+    def flooding(self) -> tuple[float | None, str | None]:
+        """(downflooding angle [deg], opening name) on this side."""
+        return self.curve.downflooding_angle(self.sign)
 
 
 @dataclass(frozen=True)
+class Outcome:
+    """What a criterion attained (in its kind's unit; None when it cannot be had) and a note.
+
+    ``at_least`` is a known lower bound when the value itself lies beyond the computed curve
+    (e.g. GZ still positive at its last angle); the criterion is met when that bound meets the minimum.
+    """
+
+    attained: float | None
+    note: str = ""
+    at_least: float | None = None
+
+
+def _toml(key: str, *, required: bool = True, default: Any = dataclasses.MISSING) -> Any:
+    return field(default=default, metadata={"toml": key, "required": required})
+
+
+@dataclass(frozen=True)
+class NoParams:
+    """A kind that takes no parameters."""
+
+
+@dataclass(frozen=True)
+class AreaParams:
+    """Area under GZ from ``start`` to ``end`` [deg]; ``to_flooding`` stops at the downflooding angle if less."""
+
+    start: float = _toml("from")
+    end: float = _toml("to")
+    to_flooding: bool = _toml("to_flooding", required=False, default=False)
+
+
+@dataclass(frozen=True)
+class AngleParams:
+    """One angle [deg]."""
+
+    angle: float = _toml("angle")
+
+
+@dataclass(frozen=True)
+class Kind:
+    """A registered criterion kind: name, unit of its value, parameter type and the check."""
+
+    name: str
+    unit: str
+    params: type
+    check: Callable[[Context, Any], Outcome]
+
+
+#: kind name -> Kind
+REGISTRY: dict[str, Kind] = {}
+
+
+def register(name: str, *, unit: str, params: type = NoParams) -> Callable[[Callable[[Context, Any], Outcome]],
+                                                                           Callable[[Context, Any], Outcome]]:
+    """Decorator adding a criterion kind: ``check(ctx, params) -> Outcome``."""
+    def deco(fn: Callable[[Context, Any], Outcome]) -> Callable[[Context, Any], Outcome]:
+        if name in REGISTRY:
+            raise ValueError(f"criterion kind {name!r} is registered twice")
+        REGISTRY[name] = Kind(name, unit, params, fn)
+        return fn
+    return deco
+
+
+# ---------------------------------------------------------------------------- the kinds
+
+
+@register("area", unit="m·rad", params=AreaParams)
+def _area(ctx: Context, p: AreaParams) -> Outcome:
+    end, note = p.end, ""
+    flood, _ = ctx.flooding
+    if p.to_flooding and flood is not None and flood < end:
+        end = flood
+        note = f"to the downflooding angle {flood:.2f}°"
+    if end <= p.start:
+        return Outcome(0.0, f"downflooding at {flood:.2f}° comes before {p.start:g}°")
+    if end > ctx.top + tol.ANGLE_SLACK:
+        return Outcome(None, f"curve computed only to {ctx.top:g}°")
+    # for either side this is the righting energy: positive when GZ rights
+    return Outcome(ctx.curve.area(ctx.sign * p.start, ctx.sign * end), note)
+
+
+@register("gz_at", unit="m", params=AngleParams)
+def _gz_at(ctx: Context, p: AngleParams) -> Outcome:
+    return Outcome(ctx.sign * ctx.curve.gz_at(ctx.sign * p.angle))
+
+
+@register("gz_max_beyond", unit="m", params=AngleParams)
+def _gz_max_beyond(ctx: Context, p: AngleParams) -> Outcome:
+    x, y = ctx.curve.side(ctx.sign)
+    m = x >= p.angle - tol.ANGLE_SLACK
+    if not m.any():
+        return Outcome(None)
+    attained = float(y[m].max())
+    gmax, amax = ctx.curve.max_gz(ctx.sign)
+    if amax >= p.angle:
+        attained = max(attained, gmax)
+    return Outcome(attained)
+
+
+@register("angle_of_max", unit="deg")
+def _angle_of_max(ctx: Context, p: NoParams) -> Outcome:
+    return Outcome(ctx.curve.max_gz(ctx.sign)[1])
+
+
+@register("gm", unit="m")
+def _gm(ctx: Context, p: NoParams) -> Outcome:
+    c = ctx.curve
+    return Outcome(c.gm_upright if c.gm_upright is not None else c.gm_from_slope())
+
+
+@register("range", unit="deg")
+def _range(ctx: Context, p: NoParams) -> Outcome:
+    v = ctx.curve.range_of_stability(ctx.sign)
+    return Outcome(v) if v is not None else Outcome(None, "no vanishing angle within the curve", at_least=ctx.top)
+
+
+@register("vanishing", unit="deg")
+def _vanishing(ctx: Context, p: NoParams) -> Outcome:
+    v = ctx.curve.vanishing_angle(ctx.sign)
+    return Outcome(v) if v is not None else Outcome(None, "no vanishing angle within the curve", at_least=ctx.top)
+
+@dataclass(frozen=True)
 class Criterion:
-    """One requirement: ``kind`` (see :data:`KINDS`), its angles and the minimum value."""
+    """One requirement: a registered ``kind``, its typed ``params`` and the minimum value (kind's unit)."""
 
     id: str
     kind: str
     minimum: float
     text: str = ""
-    start: float = 0.0
-    end: float = 0.0
-    angle: float = 0.0
-    to_flooding: bool = False
+    params: Any = NoParams()
+
+    def __post_init__(self) -> None:
+        if self.kind not in REGISTRY:
+            raise InputError(f"criterion {self.id}: kind must be one of {', '.join(REGISTRY)}, got {self.kind!r}")
+        want = REGISTRY[self.kind].params
+        if not isinstance(self.params, want):
+            raise InputError(f"criterion {self.id}: kind {self.kind} takes {want.__name__}, "
+                             f"got {type(self.params).__name__}")
 
     @property
     def unit(self) -> str:
-        return KINDS[self.kind]
+        return REGISTRY[self.kind].unit
 
 
 @dataclass(frozen=True)
@@ -87,13 +260,13 @@ IMO_2008_GENERAL = CriteriaSet(
     source=("International Code on Intact Stability 2008, resolution MSC.267(85), Part A, 2.2 "
             "(clause numbers from memory; limits as printed)"),
     items=(
-        Criterion("2.2.1.1", "area", 0.055, "area under the GZ curve from 0° to 30°", start=0.0, end=30.0),
+        Criterion("2.2.1.1", "area", 0.055, "area under the GZ curve from 0° to 30°", AreaParams(0.0, 30.0)),
         Criterion("2.2.1.2", "area", 0.090, "area from 0° to 40°, or to the downflooding angle if less",
-                  start=0.0, end=40.0, to_flooding=True),
+                  AreaParams(0.0, 40.0, to_flooding=True)),
         Criterion("2.2.1.3", "area", 0.030, "area from 30° to 40°, or to the downflooding angle if less",
-                  start=30.0, end=40.0, to_flooding=True),
+                  AreaParams(30.0, 40.0, to_flooding=True)),
         Criterion("2.2.2", "gz_max_beyond", 0.20, "GZ at an angle of heel equal to or greater than 30°",
-                  angle=30.0),
+                  AngleParams(30.0)),
         Criterion("2.2.3", "angle_of_max", 25.0,
                   "maximum GZ at an angle of heel not less than 25° (preferably more than 30°)"),
         Criterion("2.2.4", "gm", 0.15, "initial metacentric height GM0"),
@@ -102,9 +275,42 @@ IMO_2008_GENERAL = CriteriaSet(
 
 BUILTIN = {"imo2008": IMO_2008_GENERAL}
 
+_COMMON_KEYS = ("id", "kind", "minimum", "text")
+
+
+def _param_value(raw: Any, f: dataclasses.Field, where: str) -> Any:
+    key = f.metadata.get("toml", f.name)
+    if f.type in (bool, "bool"):
+        if not isinstance(raw, bool):
+            raise InputError(f"{where}: {key} must be true or false")
+        return raw
+    if isinstance(raw, bool):
+        raise InputError(f"{where}: {key} must be a number")
+    try:
+        v = float(raw)
+    except (TypeError, ValueError):
+        raise InputError(f"{where}: {key} must be a number") from None
+    if not math.isfinite(v):
+        raise InputError(f"{where}: {key} must be finite")
+    return v
+
+
+def parse_params(kind: str, table: Mapping[str, Any], where: str) -> Any:
+    """The typed parameters of ``kind`` from a TOML table; errors name ``where`` and the key."""
+    cls = REGISTRY[kind].params
+    fields = dataclasses.fields(cls)
+    keys = {f.metadata.get("toml", f.name): f for f in fields}
+    extra = sorted(set(table) - set(keys) - set(_COMMON_KEYS))
+    if extra:
+        raise InputError(f"{where}: unknown keys {extra} for kind {kind}; known: {sorted(keys) + list(_COMMON_KEYS)}")
+    missing = [k for k, f in keys.items() if f.metadata.get("required", True) and k not in table]
+    if missing:
+        raise InputError(f"{where}: {kind} needs {' and '.join(missing)} (degrees)")
+    return cls(**{f.name: _param_value(table[k], f, where) for k, f in keys.items() if k in table})
+
 
 def read_criteria(path: str) -> CriteriaSet:
-    """Read a user criteria set (TOML); errors name the file and the criterion."""
+    """Read a user criteria set (TOML), or a built-in one by name; errors name the file and the criterion."""
     if path in BUILTIN:
         return BUILTIN[path]
     data = read_toml(path, f"no such criteria file (built-in sets: {', '.join(BUILTIN)})")
@@ -112,27 +318,13 @@ def read_criteria(path: str) -> CriteriaSet:
     for k, c in enumerate(data.get("criterion", [])):
         where = f"{path}: criterion {k + 1}"
         kind = c.get("kind")
-        if kind not in KINDS:
-            raise InputError(f"{where}: kind must be one of {', '.join(KINDS)}, got {kind!r}")
-        try:
-            mn = float(c["minimum"])
-        except (KeyError, TypeError, ValueError):
-            raise InputError(f"{where}: needs a numeric minimum") from None
-        def num(key: str, default: float = 0.0) -> float:
-            try:
-                v = float(c.get(key, default))
-            except (TypeError, ValueError):
-                raise InputError(f"{where}: {key} must be a number") from None
-            if not math.isfinite(v):
-                raise InputError(f"{where}: {key} must be finite")
-            return v
-        if kind == "area" and ("from" not in c or "to" not in c):
-            raise InputError(f"{where}: an area needs from and to (degrees)")
-        if kind in ("gz_at", "gz_max_beyond") and "angle" not in c:
-            raise InputError(f"{where}: {kind} needs angle (degrees)")
-        items.append(Criterion(id=str(c.get("id", k + 1)), kind=kind, minimum=mn, text=str(c.get("text", "")),
-                               start=num("from"), end=num("to"), angle=num("angle"),
-                               to_flooding=bool(c.get("to_flooding", False))))
+        if kind not in REGISTRY:
+            raise InputError(f"{where}: kind must be one of {', '.join(REGISTRY)}, got {kind!r}")
+        mn = c.get("minimum")
+        if isinstance(mn, bool) or not isinstance(mn, (int, float)) or not math.isfinite(float(mn)):
+            raise InputError(f"{where}: needs a numeric minimum")
+        items.append(Criterion(id=str(c.get("id", k + 1)), kind=kind, minimum=float(mn),
+                               text=str(c.get("text", "")), params=parse_params(kind, c, where)))
     if not items:
         raise InputError(f"{path}: no [[criterion]] entries")
     return CriteriaSet(name=str(data.get("name", os.path.basename(path))), source=str(data.get("source", "")),
@@ -174,60 +366,30 @@ class Report:
         }
 
 
-def evaluate(curve: Any, cset: CriteriaSet = IMO_2008_GENERAL, *, sides: tuple[int, ...] = (1,)) -> Report:
-    """Evaluate ``cset`` on a :class:`~meshhydro.stability.RightingCurve` for each side (+1 starboard, -1 port)."""
+def check(criterion: Criterion, ctx: Context) -> Result:
+    """One criterion on one side."""
+    try:
+        out = REGISTRY[criterion.kind].check(ctx, criterion.params)
+    except InputError as exc:
+        out = Outcome(None, str(exc))
+    a = out.attained
+    if a is not None:
+        ok = a >= criterion.minimum - tol.CRITERION_SLACK
+    else:
+        ok = out.at_least is not None and out.at_least >= criterion.minimum
+    return Result(criterion.id, criterion.text or criterion.kind, ctx.side, criterion.unit, criterion.minimum, a,
+                  None if a is None else a - criterion.minimum, bool(ok), out.note)
+
+
+def evaluate(curve: RightingCurve, cset: CriteriaSet = IMO_2008_GENERAL, *, sides: tuple[int, ...] = (1,),
+             hydrostatics: Hydrostatics | None = None, openings: tuple[Opening, ...] = ()) -> Report:
+    """Evaluate ``cset`` on a righting curve for each side (+1 starboard, -1 port)."""
     results = []
     notes = []
     for sign in sides:
-        side = "starboard" if sign > 0 else "port"
-        top = float(max(curve.heel * sign))
-        flood, opening = curve.downflooding_angle(sign)
+        ctx = Context(curve, sign, hydrostatics=hydrostatics, openings=tuple(openings))
+        flood, opening = ctx.flooding
         if flood is not None:
-            notes.append(f"{side}: downflooding angle {flood:.2f}° ({opening})")
-        for c in cset.items:
-            attained: float | None = None
-            note = ""
-            try:
-                if c.kind == "area":
-                    end = c.end
-                    if c.to_flooding and flood is not None and flood < end:
-                        end = flood
-                        note = f"to the downflooding angle {flood:.2f}°"
-                    if end <= c.start:
-                        attained = 0.0
-                        note = f"downflooding at {flood:.2f}° comes before {c.start:g}°"
-                    elif end > top + 1e-9:
-                        note = f"curve computed only to {top:g}°"
-                    else:
-                        # for either side this is the righting energy: positive when GZ rights
-                        attained = curve.area(sign * c.start, sign * end)
-                elif c.kind == "gz_at":
-                    attained = sign * curve.gz_at(sign * c.angle)
-                elif c.kind == "gz_max_beyond":
-                    x, y = curve._side(sign)
-                    m = x >= c.angle - 1e-9
-                    if m.any():
-                        attained = float(y[m].max())
-                        gmax, amax = curve.max_gz(sign)
-                        if amax >= c.angle:
-                            attained = max(attained, gmax)
-                elif c.kind == "angle_of_max":
-                    attained = curve.max_gz(sign)[1]
-                elif c.kind == "gm":
-                    attained = curve.gm_upright if curve.gm_upright is not None else curve.gm_from_slope()
-                elif c.kind == "range":
-                    attained = curve.range_of_stability(sign)
-                    if attained is None:
-                        note = "no vanishing angle within the curve"
-                elif c.kind == "vanishing":
-                    attained = curve.vanishing_angle(sign)
-                    if attained is None:
-                        note = "no vanishing angle within the curve"
-            except InputError as exc:
-                note = str(exc)
-            ok = attained is not None and attained >= c.minimum - 1e-12
-            if attained is None and c.kind in ("range", "vanishing") and note.startswith("no vanishing"):
-                ok = top >= c.minimum  # positive to the end of the curve
-            results.append(Result(c.id, c.text or c.kind, side, c.unit, c.minimum, attained,
-                                  None if attained is None else attained - c.minimum, bool(ok), note))
+            notes.append(f"{ctx.side}: downflooding angle {flood:.2f}° ({opening})")
+        results.extend(check(c, ctx) for c in cset.items)
     return Report(cset.name, cset.source, tuple(results), CAUTION, tuple(notes))

@@ -44,6 +44,8 @@ class Table:
     columns: list[Column]
     rows: list[dict[str, Any]] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
+    #: column keys shown in text, in that order (None: every column); CSV and JSON carry every column
+    text_keys: list[str] | None = None
 
 
 @dataclass
@@ -94,6 +96,14 @@ class Document:
     cautions: list[str] = field(default_factory=list)
     verdict: bool | None = None
     meta: dict[str, Any] = field(default_factory=dict)
+    #: lines shown under the title (source, vessel, ...)
+    header: list[str] = field(default_factory=list)
+    #: the verdict in words ("all criteria met"); shown when ``verdict`` is not None
+    verdict_text: str = ""
+    #: key of the table (or of the section whose values) a one-table format such as CSV exports
+    primary: str = ""
+    #: the analysis' own machine-readable payload, when it has one (JSON renders it as is)
+    data: Any = None
 
     def section(self, key: str) -> Section:
         """The first section (at any depth) with ``key``; KeyError when none."""
@@ -102,5 +112,16 @@ class Document:
             s = stack.pop(0)
             if s.key == key:
                 return s
+            stack[0:0] = s.sections
+        raise KeyError(key)
+
+    def table(self, key: str) -> Table:
+        """The first table (in any section, at any depth) with ``key``; KeyError when none."""
+        stack = list(self.sections)
+        while stack:
+            s = stack.pop(0)
+            for t in s.tables:
+                if t.key == key:
+                    return t
             stack[0:0] = s.sections
         raise KeyError(key)

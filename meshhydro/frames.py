@@ -142,15 +142,6 @@ def longitudinal_direction(heel: float, trim: float) -> np.ndarray:
     return np.array([math.cos(th), math.sin(ph) * math.sin(th), math.cos(ph) * math.sin(th)])
 
 
-def attitude_from_up(up: np.ndarray) -> tuple[float, float]:
-    """Inverse of :func:`up_vector`: (heel, trim) in degrees from a unit normal (3,)."""
-    n = np.asarray(up, dtype=float)
-    n = n / np.linalg.norm(n)
-    trim = math.degrees(math.asin(max(-1.0, min(1.0, -n[0]))))
-    heel = math.degrees(math.atan2(n[1], n[2]))
-    return heel, trim
-
-
 def hull_to_earth(heel: float, trim: float) -> np.ndarray:
     """Rotation (3, 3) taking hull-frame vectors to an earth frame (x forward-horizontal, z up)."""
     ph = math.radians(heel)

@@ -1,7 +1,10 @@
-"""The thin object: a checked hull mesh with its cached products, forwarding to the kernels."""
+"""The hull's geometry: a checked mesh with read-only arrays and cached products, forwarding to the kernels.
+
+Floating and stability methods sit on :class:`meshhydro.vessel.FloatingHull`, above the solver;
+:func:`meshhydro.load_hull` returns one.
+"""
 from __future__ import annotations
 
-import math
 from functools import cached_property
 from typing import Any, Sequence
 
@@ -10,11 +13,13 @@ import numpy as np
 from . import hydrostatics as _hs
 from . import kernel
 from .errors import InputError, InvalidMeshError
+from . import tolerances as tol
 from .frames import SEA_WATER, up_vector
-from .mesh import HealthReport, MeshData, check_mesh
+from .mesh import HealthReport, MeshData
 
 
-def _vec3(value: Any, name: str) -> np.ndarray:
+def vec3(value: Any, name: str) -> np.ndarray:
+    """``value`` as a finite (3,) float64 array; InputError naming ``name`` otherwise."""
     try:
         a = np.asarray(value, dtype=float).reshape(-1)
     except (TypeError, ValueError):
@@ -24,10 +29,17 @@ def _vec3(value: Any, name: str) -> np.ndarray:
     return a
 
 
+def _frozen(a: np.ndarray, dtype: type) -> np.ndarray:
+    out = np.array(a, dtype=dtype)
+    out.flags.writeable = False
+    return out
+
+
 class Hull:
     """A usable hull: vertices and faces in the hull frame plus cached kernel products.
 
-    Build it with :func:`load_hull`. Coordinates are metres in the hull frame
+    Build it with :func:`meshhydro.load_hull`. The arrays are read-only copies, so the cached
+    products cannot go stale; make a new hull for a changed mesh. Coordinates are metres in the hull frame
     (x forward, y to port, z up); angles are degrees (see :mod:`meshhydro.frames`).
 
     Attributes
@@ -44,11 +56,11 @@ class Hull:
                  x_ref: float | None = None) -> None:
         if not report.usable:
             raise InvalidMeshError(report.problems[0])
-        self.vertices = mesh.vertices
-        self.faces = mesh.faces
+        self.vertices = _frozen(mesh.vertices, np.float64)
+        self.faces = _frozen(mesh.faces, np.int64)
         self.report = report
         self.name = name or mesh.source
-        lo, hi = np.asarray(report.bounds[0]), np.asarray(report.bounds[1])
+        lo, hi = _frozen(report.bounds[0], np.float64), _frozen(report.bounds[1], np.float64)
         self.bounds = (lo, hi)
         self.x_ref = float(0.5 * (lo[0] + hi[0]) if x_ref is None else x_ref)
         rim_vertices = self._rim_vertices()
@@ -87,19 +99,17 @@ class Hull:
 
     @cached_property
     def is_symmetric(self) -> bool:
-        """True when the mesh is its own mirror image in y (to 1e-6 of its size)."""
+        """True when the mesh is its own mirror image in y (to :data:`~meshhydro.tolerances.SYMMETRY` of its size)."""
         from scipy.spatial import cKDTree
 
         v = self.vertices
         d, _ = cKDTree(v).query(v * np.array([1.0, -1.0, 1.0]), k=1)
-        return bool(np.max(d) <= 1e-6 * max(self.size, 1e-9))
+        return bool(np.max(d) <= tol.SYMMETRY * max(self.size, tol.TINY_LENGTH))
 
     @cached_property
     def deck_edge(self) -> np.ndarray:
-        """Deck-edge vertices (k, 3) [m]: see :func:`meshhydro.stability.deck_edge_points`."""
-        from .stability import deck_edge_points
-
-        return deck_edge_points(self)
+        """Deck-edge vertices (k, 3) [m], read-only: see :func:`deck_edge_points`."""
+        return _frozen(deck_edge_points(self.vertices, self.faces, self.bounds), np.float64)
 
     @property
     def prepared(self) -> kernel.Prepared:
@@ -122,8 +132,8 @@ class Hull:
         segments : bool
             Also return the waterline segments.
         """
-        p = _vec3(point, "point")
-        n = _vec3(normal, "normal")
+        p = vec3(point, "point")
+        n = vec3(normal, "normal")
         if np.linalg.norm(n) == 0:
             raise InputError("normal must not be the zero vector")
         return kernel.cut(self._prep, p, n, segments=segments)
@@ -138,63 +148,29 @@ class Hull:
         """Hydrostatics at each draft of ``drafts`` [m]."""
         return [self.hydrostatics(float(t), heel, trim, density) for t in drafts]
 
-    def draft_for_volume(self, volume: float, heel: float = 0.0, trim: float = 0.0) -> float:
-        """Draft [m] at which the submerged volume equals ``volume`` [m³] (fixed attitude)."""
-        from .equilibrium import draft_for_volume
-
-        return draft_for_volume(self, volume, heel=heel, trim=trim)
-
-    # ---------------------------------------------------------------- stability (forwarded)
-    def equilibrium(self, displacement: float, cog: Sequence[float], density: float = SEA_WATER,
-                    **options: Any):
-        """Free-floating position for a load: see :func:`meshhydro.equilibrium.solve`."""
-        from .equilibrium import solve
-
-        return solve(self, displacement=displacement, cog=_vec3(cog, "cog"), density=density, **options)
-
-    def righting_curve(self, displacement: float, cog: Sequence[float], heels: Sequence[float] | None = None,
-                       free_trim: bool = True, density: float = SEA_WATER, **options: Any):
-        """Righting-lever curve: see :func:`meshhydro.stability.righting_curve`."""
-        from .stability import righting_curve
-
-        return righting_curve(self, displacement=displacement, cog=_vec3(cog, "cog"), heels=heels,
-                              free_trim=free_trim, density=density, **options)
-
     def __repr__(self) -> str:
         return (f"Hull({self.name!r}, faces={len(self.faces)}, L={self.length:.3f} m, "
                 f"B={self.breadth:.3f} m, D={self.depth:.3f} m)")
 
 
-def load_hull(source: Any, units: str = "m", *, forward: str = "+x", up: str = "+z",
-              offset: Sequence[float] = (0.0, 0.0, 0.0), flip_inside_out: bool = False,
-              merge_overlaps: bool = False, name: str | None = None, x_ref: float | None = None) -> Hull:
-    """Load and check a hull mesh; raise if it cannot be used.
+def deck_edge_points(vertices: np.ndarray, faces: np.ndarray,
+                     bounds: tuple[np.ndarray, np.ndarray]) -> np.ndarray:
+    """Deck-edge vertices (k, 3) [m]: shared by an upward-facing face (n_z > 0.5) and a
+    side face (|n_z| < 0.5), in the upper half of the hull's height. Empty when the
+    mesh has no such edge (a rounded top).
 
-    Parameters
-    ----------
-    source : path or trimesh.Trimesh
-        STL, OBJ, PLY, OFF, GLB or anything trimesh reads.
-    units : str
-        m, mm, cm, ft or in.
-    forward, up : str
-        File axes pointing forward and up, e.g. ``up='+y'`` for a Y-up export.
-    offset : (3,) [m]
-        Added to hull-frame coordinates after scaling and rotation.
-    flip_inside_out, merge_overlaps : bool
-        Explicit repairs; nothing is repaired otherwise.
-    name : str, optional
-    x_ref : float, optional [m]
-        x of the draft reference point; default the middle of the hull's length.
-
-    Raises
-    ------
-    InputError, InvalidMeshError
+    vertices : (n, 3) float64 [m]; faces : (m, 3) int; bounds : ((3,), (3,)) [m]
     """
-    md, rep = check_mesh(source, units=units, forward=forward, up=up, offset=tuple(offset),
-                         flip_inside_out=flip_inside_out, merge_overlaps=merge_overlaps)
-    if not rep.usable:
-        more = f" (and {len(rep.problems) - 1} more problems; run 'meshhydro check')" if len(rep.problems) > 1 else ""
-        raise InvalidMeshError(rep.problems[0] + more)
-    if x_ref is not None and not math.isfinite(float(x_ref)):
-        raise InputError(f"x_ref must be finite, got {x_ref!r}")
-    return Hull(md, rep, name=name, x_ref=x_ref)
+    v, f = vertices, faces
+    nrm = np.cross(v[f[:, 1]] - v[f[:, 0]], v[f[:, 2]] - v[f[:, 0]])
+    ln = np.linalg.norm(nrm, axis=1)
+    ok = ln > 0
+    nz = np.zeros(len(f))
+    nz[ok] = nrm[ok, 2] / ln[ok]
+    deck = np.zeros(len(v), bool)
+    side = np.zeros(len(v), bool)
+    deck[f[ok & (nz > 0.5)].ravel()] = True
+    side[f[ok & (np.abs(nz) < 0.5)].ravel()] = True
+    zmid = 0.5 * (bounds[0][2] + bounds[1][2])
+    sel = deck & side & (v[:, 2] > zmid)
+    return v[sel]

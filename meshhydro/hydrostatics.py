@@ -29,7 +29,7 @@ import numpy as np
 
 from . import kernel
 from .errors import CannotFloatError, InputError
-from .frames import up_vector
+from .frames import SEA_WATER, up_vector
 
 #: Keys of a hydrostatics row, in table order (the API attribute names).
 FIELDS = (
@@ -89,7 +89,7 @@ def check_density(density: float) -> float:
     if not math.isfinite(rho) or rho <= 0:
         raise InputError(f"water density must be a positive number of t/m³, got {density!r}")
     if rho > 2.0:
-        raise InputError(f"water density {rho} t/m³ is implausible (sea water is 1.025 t/m³; is it in kg/m³?)")
+        raise InputError(f"water density {rho} t/m³ is implausible (sea water is {SEA_WATER} t/m³; is it in kg/m³?)")
     return rho
 
 
@@ -99,7 +99,7 @@ def compute(
     *,
     heel: float = 0.0,
     trim: float = 0.0,
-    density: float = 1.025,
+    density: float = SEA_WATER,
     x_ref: float,
 ) -> Hydrostatics:
     """Hydrostatics of a prepared mesh at ``draft`` [m] with heel and trim [deg].
@@ -172,37 +172,3 @@ def compute(
         lwl=lwl,
         bwl=bwl,
     )
-
-
-def parse_range(spec: str, what: str = "range") -> np.ndarray:
-    """Parse ``START:STOP:STEP`` (STOP included when reached) or a comma list.
-
-    Raises
-    ------
-    InputError
-        With the offending text, for anything that is not such a range.
-    """
-    text = str(spec).strip()
-    try:
-        if ":" in text:
-            parts = text.split(":")
-            if len(parts) != 3:
-                raise ValueError
-            a, b, s = (float(x) for x in parts)
-            if not all(math.isfinite(x) for x in (a, b, s)) or s <= 0 or b < a:
-                raise ValueError
-            n = int(math.floor((b - a) / s + 1e-9)) + 1
-            if n > 100000:
-                raise InputError(f"{what} {spec!r} has {n} values; use a coarser step")
-            vals = a + s * np.arange(n)
-        else:
-            vals = np.array([float(x) for x in text.split(",") if x.strip()])
-            if len(vals) == 0 or not np.all(np.isfinite(vals)):
-                raise ValueError
-    except InputError:
-        raise
-    except ValueError:
-        raise InputError(
-            f"{what} {spec!r} is not START:STOP:STEP (STOP >= START, STEP > 0) nor a list like 1,2.5,3"
-        ) from None
-    return np.round(vals, 12)

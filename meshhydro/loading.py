@@ -45,11 +45,8 @@ import numpy as np
 
 from .errors import InputError
 from .frames import SEA_WATER
-
-
-def virtual_cog(cog: Any, fsm: float, displacement: float) -> np.ndarray:
-    """G (3,) [m] raised along the hull z axis by the free-surface correction FSM / Δ (virtual rise)."""
-    return np.asarray(cog, dtype=float) + np.array([0.0, 0.0, float(fsm) / float(displacement)])
+from .load import FixedLoad, virtual_cog
+from .vessel import FloatingHull, load_hull
 
 
 @dataclass(frozen=True)
@@ -91,6 +88,10 @@ class Condition:
     @property
     def cog_fluid(self) -> np.ndarray:
         return virtual_cog(self.cog, self.fsm, self.displacement)
+
+    def load(self) -> FixedLoad:
+        """The condition as the solver's load: solid G raised by FSM / Δ, fixed with the attitude."""
+        return FixedLoad(self.displacement, self.cog, self.fsm)
 
     def to_dict(self) -> dict[str, Any]:
         return {
@@ -182,9 +183,8 @@ class Case:
                 return c
         raise InputError(f"{self.path}: no condition named {name!r}; have {[c.name for c in self.conditions]}")
 
-    def load_hull(self):
-        from .hull import load_hull
-
+    def load_hull(self) -> FloatingHull:
+        """Load and check the case's hull mesh."""
         return load_hull(self.mesh, units=self.units, forward=self.forward, up=self.up, offset=self.offset)
 
 

@@ -5,9 +5,9 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from .output import save_figure
 from .criteria import CAUTION_SHORT as CAUTION
-
+from .hull import Hull
+from .output import save_figure
 
 
 def _figure(*args: Any, **kw: Any):
@@ -60,12 +60,12 @@ def hydrostatic_curves(rows: Sequence[dict[str, float]], path: str, *, title: st
     _save(fig, path)
 
 
-def righting_curve(curve: Any, path: str, *, title: str = "", criteria: Any = None) -> None:
+def righting_curve(curve: Any, path: str, *, title: str = "") -> None:
     """GZ curve with the GM tangent to 57.3°, and marks for the derived angles on each side."""
     fig, ax = _figure(figsize=(10, 6))
     h, gz = curve.heel, curve.gz
     fine = np.linspace(h[0], h[-1], max(400, 4 * len(h)))
-    sp = curve._spline()
+    sp = curve.interpolant()
     ax.plot(fine, sp(fine), color="tab:blue", lw=2, label="GZ (free trim)" if curve.free_trim else "GZ (fixed trim)")
     ax.plot(h, gz, ".", color="tab:blue", ms=3)
     ax.axhline(0, color="k", lw=0.8)
@@ -115,7 +115,7 @@ def cross_curves(cc: Any, path: str, *, title: str = "") -> None:
     _save(fig, path)
 
 
-def largest_section(hull: Any, n: int = 41) -> tuple[float, np.ndarray]:
+def largest_section(hull: Hull, n: int = 41) -> tuple[float, np.ndarray]:
     """x [m] and outline segments (k, 2, 3) of the transverse section of largest area."""
     from .sections import section_segments, sectional_areas
 
@@ -125,7 +125,7 @@ def largest_section(hull: Any, n: int = 41) -> tuple[float, np.ndarray]:
     return xb, section_segments(hull, xb)
 
 
-def section_view(hull: Any, traces: Sequence[Any], path: str, *, size: tuple[int, int] = (960, 720),
+def section_view(hull: Hull | Sequence[Hull], traces: Sequence[Any], path: str, *, size: tuple[int, int] = (960, 720),
                  current: int | None = None, labels: Sequence[str] | None = None) -> None:
     """The transverse-plane figure: outline, waterlines, trace of B, metacentre locus, G and GZ.
 
@@ -223,3 +223,9 @@ def convergence_plot(rows: Sequence[dict[str, Any]], path: str, *, title: str = 
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     _save(fig, path)
+
+
+def draw(figure: Any, path: str) -> None:
+    """Draw a document :class:`~meshhydro.document.Figure` to a PNG at ``path`` with the view it names."""
+    views = {"righting_curve": righting_curve, "cross_curves": cross_curves, "hydrostatic_curves": hydrostatic_curves}
+    views[figure.view](figure.data, path, title=figure.title)

@@ -14,6 +14,7 @@ from typing import Any
 import numpy as np
 
 from .frames import hull_to_earth
+from .hull import Hull
 
 COLOURS = {
     "background": "#f4f1ea",
@@ -52,7 +53,7 @@ class Scene:
     camera : 'astern' (looking forward along the hull, parallel projection) or 'oblique'
     """
 
-    def __init__(self, hull: Any, trace: Any, *, size: tuple[int, int] = (960, 720), camera: str = "astern") -> None:
+    def __init__(self, hull: Hull, trace: Any, *, size: tuple[int, int] = (960, 720), camera: str = "astern") -> None:
         if camera not in ("astern", "oblique"):
             from .errors import InputError
 

@@ -26,6 +26,9 @@ from typing import Any, Sequence
 import numpy as np
 
 from .errors import InputError
+from .frames import SEA_WATER
+from .hull import Hull, vec3
+from .stability import RightingCurve, righting_curve
 from .output import to_json
 
 MARKER = ".meshhydro-sweep"
@@ -33,31 +36,31 @@ MARKER = ".meshhydro-sweep"
 
 @dataclass(frozen=True, eq=False)
 class Trace:
-    """Per-angle floating positions of a heel sweep (hull frame, SI; angles in degrees).
+    """A heel sweep: a free-trim righting curve seen as B, M and G positions (hull frame, SI, degrees).
 
-    Attributes
-    ----------
-    heel, gz, draft, trim : (n,)
-    cob, metacentre, up : (n, 3)
-    bm : (n,) [m]
-        Distance from B to the pro-metacentre.
-    cog : (3,) [m]
-    displacement, density : float
-    label : str
+    The per-angle arrays are the curve's own (``heel, gz, draft, trim`` (n,), ``cob, up`` (n, 3),
+    ``bm`` (n,) [m], ``cog`` (3,) [m], ``displacement``, ``density``); ``metacentre`` (n, 3) [m] is
+    the pro-metacentre ``B + BM up`` of each angle.
     """
 
-    heel: np.ndarray
-    gz: np.ndarray
-    draft: np.ndarray
-    trim: np.ndarray
-    cob: np.ndarray
-    metacentre: np.ndarray
-    up: np.ndarray
-    bm: np.ndarray
-    cog: np.ndarray
-    displacement: float
-    density: float
+    curve: RightingCurve
     label: str = ""
+
+    heel = property(lambda self: self.curve.heel)
+    gz = property(lambda self: self.curve.gz)
+    draft = property(lambda self: self.curve.draft)
+    trim = property(lambda self: self.curve.trim)
+    cob = property(lambda self: self.curve.cob)
+    up = property(lambda self: self.curve.up)
+    bm = property(lambda self: self.curve.bm)
+    cog = property(lambda self: self.curve.cog)
+    displacement = property(lambda self: self.curve.displacement)
+    density = property(lambda self: self.curve.density)
+
+    @property
+    def metacentre(self) -> np.ndarray:
+        """Pro-metacentre (n, 3) [m] of each angle: B + (I_T / V) up."""
+        return self.curve.cob + self.curve.bm[:, None] * self.curve.up
 
     def to_dict(self) -> dict[str, Any]:
         rows = []
@@ -70,24 +73,11 @@ class Trace:
                 "angles": rows}
 
 
-def heel_trace(hull: Any, displacement: float, cog: Sequence[float], heels: Sequence[float], *,
-               density: float = 1.025, fsm: float = 0.0, label: str = "", progress: Any = None) -> Trace:
+def heel_trace(hull: Hull, displacement: float, cog: Sequence[float], heels: Sequence[float], *,
+               density: float = SEA_WATER, fsm: float = 0.0, label: str = "", progress: Any = None) -> Trace:
     """Free-trim positions over ``heels`` [deg] with B, M and G in the hull frame."""
-    c = hull.righting_curve(displacement, cog, heels=heels, density=density, fsm=fsm, progress=progress)
-    m = c.cob + c.bm[:, None] * c.up
-    return Trace(heel=c.heel, gz=c.gz, draft=c.draft, trim=c.trim, cob=c.cob, metacentre=m, up=c.up, bm=c.bm,
-                 cog=c.cog, displacement=float(displacement), density=c.density, label=label)
-
-
-def parse_size(text: str) -> tuple[int, int]:
-    """``'WxH'`` -> (W, H) in pixels, each 64 to 4096."""
-    try:
-        w, h = (int(x) for x in text.lower().split("x"))
-    except ValueError:
-        raise InputError(f"--size {text!r} is not WIDTHxHEIGHT, e.g. 960x720") from None
-    if not (64 <= w <= 4096 and 64 <= h <= 4096):
-        raise InputError(f"--size {text!r}: width and height must be 64 to 4096 pixels")
-    return w, h
+    return Trace(righting_curve(hull, displacement=displacement, cog=vec3(cog, "cog"), heels=heels, density=density,
+                                fsm=fsm, progress=progress), label)
 
 
 def _prepare_target(out: str) -> str:
@@ -100,7 +90,7 @@ def _prepare_target(out: str) -> str:
         if not os.path.isdir(out):
             raise InputError(f"{out}: exists and is not a folder")
         if os.listdir(out) and not os.path.exists(os.path.join(out, MARKER)):
-            raise InputError(f"{out}: folder is not empty and holds no earlier sweep; choose another --out")
+            raise InputError(f"{out}: folder is not empty and holds no earlier sweep; choose another folder")
     return tempfile.mkdtemp(prefix="." + os.path.basename(out) + ".", dir=parent)
 
 
@@ -142,7 +132,7 @@ def animated_gif(paths: Sequence[str], out: str, *, frame_ms: int = 350, bounce:
     pal[0].save(out, format="GIF", save_all=True, append_images=pal[1:], duration=frame_ms, loop=0, disposal=2)
 
 
-def write_sweep(hull: Any, trace: Trace, out: str, *, view: str = "both", size: tuple[int, int] = (960, 720),
+def write_sweep(hull: Hull, trace: Trace, out: str, *, view: str = "both", size: tuple[int, int] = (960, 720),
                 sheet: bool = True, gif: bool = True, camera: str = "astern", progress: Any = None,
                 timings: dict[str, float] | None = None) -> list[str]:
     """Write the sweep outputs into folder ``out`` (replacing an earlier sweep whole).

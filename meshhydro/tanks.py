@@ -299,7 +299,7 @@ def outside_volume(vertices: np.ndarray, faces: np.ndarray, hull_vertices: np.nd
     import manifold3d as m3d
 
     def man(v: np.ndarray, f: np.ndarray) -> Any:
-        mesh = m3d.Mesh64(vert_properties=np.asarray(v, np.float64), tri_verts=np.asarray(f, np.uint32))
+        mesh = m3d.Mesh64(vert_properties=np.array(v, np.float64), tri_verts=np.array(f, np.uint32))  # writeable copies
         return m3d.Manifold(mesh)
 
     a, h = man(vertices, faces), man(hull_vertices, hull_faces)

@@ -1,18 +1,12 @@
 """Shared fixtures: reference forms built in memory (no demo data in the checks)."""
 from __future__ import annotations
 
-import os
-import sys
-
 import numpy as np
 import pytest
 import trimesh
 
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
-sys.path.insert(0, ROOT)
-
-from meshhydro import load_hull  # noqa: E402
-from meshhydro.forms import box, wigley  # noqa: E402
+from meshhydro import load_hull
+from meshhydro.forms import box, wigley
 
 
 def tm(v: np.ndarray, f: np.ndarray) -> trimesh.Trimesh:

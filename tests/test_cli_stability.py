@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import json
+import math
 import os
 import subprocess
 import sys
@@ -81,19 +82,49 @@ def test_quick_check_and_both_sides(tmp_path, capsys):
     assert {s["side"] for s in d["summary"]} == {"starboard", "port"}
 
 
-def test_criteria_exit_code_and_text(case, capsys):
-    code = main(["criteria", case, "--condition", "light"])
+# Box 20 x 6 x 4 m, condition "light": Δ 100 t at KG 1.5 m in water of 1.025 t/m³.
+# Textbook box closed forms: T = Δ / (ρ L B), KB = T / 2, BM = B² / (12 T), GM = KB + BM - KG;
+# wall-sided GZ = sin φ (GM + BM tan² φ / 2) while the deck edge and the bilge stay wall-sided.
+LIGHT_T = 100.0 / 1.025 / 120.0
+LIGHT_BM = 36.0 / (12.0 * LIGHT_T)
+LIGHT_GM = LIGHT_T / 2 + LIGHT_BM - 1.5
+
+
+def _gm_set(tmp_path, minimum):
+    p = tmp_path / f"gm_{minimum:.4f}.toml"
+    p.write_text(f'name = "GM only"\n[[criterion]]\nid = "GM"\nkind = "gm"\nminimum = {minimum!r}\n'
+                 f'[[criterion]]\nid = "GZ10"\nkind = "gz_at"\nangle = 10.0\nminimum = 0.0\n')
+    return str(p)
+
+
+def test_criteria_exit_code_and_text(case, capsys, tmp_path):
+    # a minimum just below the closed-form GM is met (exit 0), just above it is not (exit 1)
+    code = main(["criteria", case, "--condition", "light", "--heels", "0:40:1", "--set", _gm_set(tmp_path, LIGHT_GM - 0.01)])
     out = capsys.readouterr().out
-    assert code in (0, 1) and "verdict" in out and "not an approval" in out
-    assert ("all criteria met" in out) == (code == 0)
+    assert code == 0 and "verdict: all criteria met" in out and "not an approval" in out
+    code = main(["criteria", case, "--condition", "light", "--heels", "0:40:1", "--format", "json",
+                 "--set", _gm_set(tmp_path, LIGHT_GM + 0.01)])
+    d = json.loads(capsys.readouterr().out)
+    assert code == 1 and d["passed"] is False
+    res = {r["id"]: r for r in d["results"]}
+    assert res["GM"]["attained"] == pytest.approx(LIGHT_GM, rel=1e-6) and res["GM"]["passed"] is False
+    phi = math.radians(10.0)
+    wall = math.sin(phi) * (LIGHT_GM + 0.5 * LIGHT_BM * math.tan(phi) ** 2)
+    assert res["GZ10"]["attained"] == pytest.approx(wall, rel=1e-6) and res["GZ10"]["passed"] is True
 
 
 def test_cross_curves_json(case, capsys):
     assert main(["cross-curves", case, "--displacements", "100:200:50", "--heels", "0:30:15", "--format", "json"]) == 0
     d = json.loads(capsys.readouterr().out)
     assert len(d["kn"]) == 3 and len(d["kn"][0]) == 3
-    # box, wall-sided at 15° for these drafts: KN = KB sin φ + ... ; at 0°, KN = 0
-    assert all(abs(row[0]) < 1e-12 for row in d["kn"])
+    # G at K (KG = 0): KN(0°) = 0, and while the box is wall-sided (bilge still immersed at 15°
+    # for T ≥ 0.81 m: tan 15° < T / (B / 2)) the wall-sided formula with GM = KB + BM (textbook)
+    phi = math.radians(15.0)
+    for disp, row in zip((100.0, 150.0, 200.0), d["kn"], strict=True):
+        t = disp / 1.025 / 120.0
+        bm = 36.0 / (12.0 * t)
+        assert abs(row[0]) < 1e-12
+        assert row[1] == pytest.approx(math.sin(phi) * (t / 2 + bm + 0.5 * bm * math.tan(phi) ** 2), rel=1e-9)
 
 
 def run(*args):

@@ -99,8 +99,8 @@ def test_random_planes_against_carved_hull(box_hull):
              compartment_from_box("b", [[12.0, 0.5, 0.0], [17.0, 2.5, 3.0]], permeability=1.0)]
 
     def man(v, f):
-        return m3d.Manifold(m3d.Mesh64(vert_properties=np.asarray(v, np.float64),
-                                       tri_verts=np.asarray(f, np.uint32)))
+        return m3d.Manifold(m3d.Mesh64(vert_properties=np.array(v, np.float64),
+                                       tri_verts=np.array(f, np.uint32)))
 
     carved = man(box_hull.vertices, box_hull.faces)
     for c in comps:

@@ -6,7 +6,7 @@ import math
 import numpy as np
 import pytest
 
-from meshhydro import CannotFloatError, load_hull
+from meshhydro import CannotFloatError, InputError, load_hull
 from meshhydro.criteria import IMO_2008_GENERAL, evaluate, read_criteria
 from meshhydro.forms import box
 from meshhydro.frames import longitudinal_direction
@@ -210,6 +210,10 @@ def test_free_surface_virtual_rise():
     solid = hull.equilibrium(cond.displacement, cond.cog)
     fluid = hull.equilibrium(cond.displacement, cond.cog, fsm=cond.fsm)
     assert solid.gmt - fluid.gmt == pytest.approx(fsm1 / cond.displacement, rel=1e-9)
+    # box closed forms: T = Δ / (ρ L B) = 1.5 m, KB = T/2, BM = B²/(12 T) = 2 m, GM = KB + BM - KG
+    kg = (180.0 * 2.0 + 4.5 * 0.5) / 184.5
+    assert solid.gmt == pytest.approx(0.75 + 2.0 - kg, rel=1e-9)
+    assert fluid.gmt == pytest.approx(0.75 + 2.0 - kg - fsm1 / 184.5, rel=1e-9)
     assert cond.kg_fluid - cond.kg == pytest.approx(fsm1 / cond.displacement)
 
 
@@ -222,9 +226,10 @@ def test_criteria_limits_are_the_codes():
     assert lims["2.2.2"] == ("gz_max_beyond", 0.20)
     assert lims["2.2.3"] == ("angle_of_max", 25.0)
     assert lims["2.2.4"] == ("gm", 0.15)
-    a, b, c3 = IMO_2008_GENERAL.items[:3]
+    a, b, c3 = (c.params for c in IMO_2008_GENERAL.items[:3])
     assert (a.start, a.end) == (0, 30) and (b.start, b.end, b.to_flooding) == (0, 40, True)
     assert (c3.start, c3.end, c3.to_flooding) == (30, 40, True)
+    assert IMO_2008_GENERAL.items[3].params.angle == 30.0
 
 
 def test_criteria_evaluation_and_downflooding(box_hull):
@@ -257,11 +262,22 @@ def test_user_criteria_file(tmp_path, box_hull):
     c = box_hull.righting_curve(RHO * 180, (10.0, 0.0, 2.0), heels=np.arange(0, 181.0, 2.0))
     rep = evaluate(c, cs)
     assert [r.id for r in rep.results] == ["R", "2"]
-    assert rep.results[1].attained == pytest.approx(c.gz_at(20.0))
+    # wall-sided box (bilge emerges at atan(T / (B/2)) = 26.6°): T = 1.5, BM = 2, GM = 0.75 + 2 - 2 (textbook)
+    phi = math.radians(20.0)
+    assert rep.results[1].attained == pytest.approx(math.sin(phi) * (0.75 + 0.5 * 2.0 * math.tan(phi) ** 2), rel=1e-9)
+    assert rep.results[1].passed
     bad = tmp_path / "bad.toml"
     bad.write_text('[[criterion]]\nkind = "bogus"\nminimum = 1\n')
-    with pytest.raises(Exception, match="criterion 1"):
+    with pytest.raises(InputError, match="criterion 1: kind must be one of"):
         read_criteria(str(bad))
+    unknown = tmp_path / "unknown.toml"
+    unknown.write_text('[[criterion]]\nkind = "gz_at"\nangle = 20\nminimum = 0.1\nangel = 3\n')
+    with pytest.raises(InputError, match="criterion 1: unknown keys \\['angel'\\]"):
+        read_criteria(str(unknown))
+    missing = tmp_path / "missing.toml"
+    missing.write_text('[[criterion]]\nkind = "area"\nfrom = 0\nminimum = 0.1\n')
+    with pytest.raises(InputError, match="criterion 1: area needs to"):
+        read_criteria(str(missing))
 
 
 def test_open_hull_floats_below_its_rim_and_says_when_it_cannot():

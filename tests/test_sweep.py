@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 from PIL import Image
 
-from meshhydro import load_hull
+from meshhydro import InputError, load_hull
 from meshhydro.forms import box, cylinder
 from meshhydro.frames import up_vector
 from meshhydro.sweep import heel_trace, write_sweep
@@ -104,7 +104,11 @@ def test_trace_json_and_clean_rerun(rendered, tmp_path):
     hull, tr, out, written = rendered
     d = json.loads((out / "trace.json").read_text())
     assert [a["heel"] for a in d["angles"]] == [0.0, 20.0, 40.0]
-    assert np.allclose(d["angles"][1]["B"], tr.cob[1])
+    # wall-sided box (bilge emerges only past atan(T / (B/2)) = 21.8°): B at 20° in the hull frame is
+    # y = -B² tan φ / (12 T) (towards starboard), z = T/2 + B² tan² φ / (24 T) (textbook B-trace parabola)
+    t = math.tan(math.radians(20.0))
+    assert np.allclose(d["angles"][1]["B"], [6.0, -16.0 * t / (12 * 0.8), 0.4 + 16.0 * t * t / (24 * 0.8)],
+                       atol=1e-9)
     # re-running replaces the folder whole: old frames vanish
     write_sweep(hull, tr, str(out), view="section", size=(320, 240))
     assert sorted(os.listdir(out)) == sorted([".meshhydro-sweep", "section.png", "trace.json"])
@@ -112,6 +116,6 @@ def test_trace_json_and_clean_rerun(rendered, tmp_path):
     other = tmp_path / "mine"
     other.mkdir()
     (other / "keep.txt").write_text("x")
-    with pytest.raises(Exception, match="not empty"):
+    with pytest.raises(InputError, match="not empty"):
         write_sweep(hull, tr, str(other), view="section")
     assert (other / "keep.txt").exists()

@@ -3,21 +3,20 @@ from __future__ import annotations
 
 import argparse
 import sys
-from typing import Any, Callable
+from typing import Any
 
 import numpy as np
 
-from .errors import InputError
-from .criteria import CAUTION
-from .cli import _density, _emit, _load
-from .output import text_table, to_csv, to_json, write_atomic
+from ..criteria import CAUTION
+from ..errors import InputError
+from ..output import text_table, to_csv, to_json, write_atomic
+from .common import density as _density, load_mesh as _load, mesh_args, out_args, parse_range, water_args, write as _emit
 
 CMP_UNITS = {"draft": "m", "exact": "", "estimate": "", "difference": "", "percent": "%"}
 
 
 def cmd_sections(args: argparse.Namespace) -> int:
-    from . import sections as S
-    from .hydrostatics import parse_range
+    from .. import sections as S
 
     hull = _load(args)
     rho = _density(args)
@@ -48,7 +47,7 @@ def cmd_sections(args: argparse.Namespace) -> int:
         write_atomic(args.bonjean, to_csv(bj.rows(), ["station_x", "draft", "area", "vertical_moment"]))
         print(f"wrote {args.bonjean}", file=sys.stderr)
     if args.plot:
-        from .plots import convergence_plot
+        from ..plots import convergence_plot
 
         convergence_plot(conv, args.plot, title=f"Section estimates vs exact at draft {drafts[-1]:g} m: {hull.name}")
         print(f"wrote {args.plot}", file=sys.stderr)
@@ -79,7 +78,7 @@ def cmd_sections(args: argparse.Namespace) -> int:
 
 
 def cmd_offsets(args: argparse.Namespace) -> int:
-    from . import sections as S
+    from .. import sections as S
 
     off = S.read_offsets(args.table)
     rho = _density(args)
@@ -89,12 +88,12 @@ def cmd_offsets(args: argparse.Namespace) -> int:
     if args.loft or args.compare:
         import trimesh
 
-        from .hull import load_hull
+        from ..vessel import load_hull
 
         v, f = S.loft_offsets(off)
         lofted = load_hull(trimesh.Trimesh(v, f, process=False), name="lofted from " + args.table)
         if args.loft:
-            from .output import save_atomic
+            from ..output import save_atomic
 
             m = trimesh.Trimesh(v, f, process=False)
             save_atomic(args.loft, lambda p: m.export(p))
@@ -131,7 +130,8 @@ def cmd_offsets(args: argparse.Namespace) -> int:
     return 0
 
 
-def register(sub: argparse._SubParsersAction, mesh_args: Callable, out_args: Callable, water_args: Callable) -> None:
+def register(sub: argparse._SubParsersAction) -> None:
+    """Add the sections and offsets sub-commands."""
     s = sub.add_parser("sections", help="stations, Bonjean data and offsets from a mesh; Simpson vs exact")
     s.add_argument("mesh")
     s.add_argument("--stations", type=int, default=10, help="number of station intervals (default 10)")

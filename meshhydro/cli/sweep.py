@@ -4,29 +4,26 @@ from __future__ import annotations
 import argparse
 import os
 import sys
-from typing import Any, Callable
+from typing import Any
 
-from .errors import InputError
+from ..analysis import check_angles
+from ..errors import InputError
+from .common import load_source, parse_range, parse_size, progress, source_args
 
 
 def cmd_sweep(args: argparse.Namespace) -> int:
-    from .cli import _progress
-    from .cli_stability import _load_source
-    from .hydrostatics import parse_range
-    from .sweep import heel_trace, parse_size, write_sweep
+    from ..sweep import heel_trace, write_sweep
 
     size = parse_size(args.size)
-    heels = parse_range(args.heels, "--heels")
-    if heels.min() < -180 or heels.max() > 180:
-        raise InputError("--heels must lie within -180..180°")
-    src = _load_source(args)
+    heels = check_angles(parse_range(args.heels, "--heels"), -180.0, 180.0, what="--heels")
+    src = load_source(args)
     c = src.condition
-    bar = _progress(args, len(heels), "solving")
+    bar = progress(args, len(heels), "solving")
     tr = heel_trace(src.hull, c.displacement, c.cog, heels, density=src.density, fsm=c.fsm, label=src.label,
                     progress=bar)
     bar.close()
     n_frames = len(tr.heel) if args.view in ("3d", "both") else 0
-    bar = _progress(args, max(n_frames, 1), "rendering")
+    bar = progress(args, max(n_frames, 1), "rendering")
     timings: dict[str, float] = {}
     written = write_sweep(src.hull, tr, args.out, view=args.view, size=size, sheet=args.sheet, gif=args.gif,
                           camera=args.camera, progress=bar, timings=timings)
@@ -49,11 +46,10 @@ def _parse_compare_source(text: str) -> tuple[str, str | None]:
 
 
 def cmd_compare(args: argparse.Namespace) -> int:
-    from .hydrostatics import parse_range
-    from .loading import read_case
-    from .output import to_json, write_atomic
-    from .plots import section_view
-    from .sweep import heel_trace, parse_size
+    from ..loading import read_case
+    from ..output import to_json, write_atomic
+    from ..plots import section_view
+    from ..sweep import heel_trace
 
     if len(args.sources) < 2:
         raise InputError("compare needs two or more case files (CASE.toml or CASE.toml@condition)")
@@ -87,11 +83,10 @@ def cmd_compare(args: argparse.Namespace) -> int:
     return 0
 
 
-def register(sub: argparse._SubParsersAction, mesh_args: Callable, out_args: Callable, water_args: Callable) -> None:
-    from .cli_stability import _source_args
-
+def register(sub: argparse._SubParsersAction) -> None:
+    """Add the sweep and compare sub-commands."""
     s = sub.add_parser("sweep", help="render the heel sweep: frames, section view, contact sheet, GIF, trace")
-    _source_args(s, mesh_args, water_args)
+    source_args(s)
     s.add_argument("--heels", default="0:90:5", help="START:STOP:STEP [deg] (default 0:90:5); negative start as --heels=-30:30:5")
     s.add_argument("--out", required=True, help="output folder (replaced whole on a re-run)")
     s.add_argument("--view", choices=("3d", "section", "both"), default="both")

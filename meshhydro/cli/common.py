@@ -1,0 +1,203 @@
+"""What every command shares: options, parsing of option text, loading, progress bars and output.
+
+Only the CLI parses option text (ranges, vectors, sizes) and names options in messages.
+"""
+from __future__ import annotations
+
+import argparse
+import math
+import sys
+from typing import Sequence
+
+import numpy as np
+
+from ..analysis import CaseInput, from_case, from_mesh
+from ..document import Document
+from ..errors import InputError
+from ..frames import FRESH_WATER, SEA_WATER
+from ..tolerances import ANGLE_SLACK
+from ..loading import Opening
+from ..output import emit
+from ..progress import Progress
+from ..renderers import render
+from ..vessel import FloatingHull, load_hull
+
+# ---------------------------------------------------------------------------- parsing option text
+
+
+def parse_vec(text: str, what: str) -> tuple[float, float, float]:
+    """``'X,Y,Z'`` -> three floats; the error names the option ``what``."""
+    try:
+        parts = [float(x) for x in text.replace(" ", "").split(",")]
+    except ValueError:
+        raise InputError(f"{what} {text!r} is not three numbers X,Y,Z") from None
+    if len(parts) != 3:
+        raise InputError(f"{what} {text!r} is not three numbers X,Y,Z")
+    return parts[0], parts[1], parts[2]
+
+
+def parse_range(spec: str, what: str = "range") -> np.ndarray:
+    """Parse ``START:STOP:STEP`` (STOP included when reached) or a comma list into an array.
+
+    Raises InputError with the offending text for anything that is not such a range.
+    """
+    text = str(spec).strip()
+    try:
+        if ":" in text:
+            parts = text.split(":")
+            if len(parts) != 3:
+                raise ValueError
+            a, b, s = (float(x) for x in parts)
+            if not all(math.isfinite(x) for x in (a, b, s)) or s <= 0 or b < a:
+                raise ValueError
+            n = int(math.floor((b - a) / s + ANGLE_SLACK)) + 1  # STOP included despite rounding
+            if n > 100000:
+                raise InputError(f"{what} {spec!r} has {n} values; use a coarser step")
+            vals = a + s * np.arange(n)
+        else:
+            vals = np.array([float(x) for x in text.split(",") if x.strip()])
+            if len(vals) == 0 or not np.all(np.isfinite(vals)):
+                raise ValueError
+    except InputError:
+        raise
+    except ValueError:
+        raise InputError(
+            f"{what} {spec!r} is not START:STOP:STEP (STOP >= START, STEP > 0) nor a list like 1,2.5,3"
+        ) from None
+    return np.round(vals, 12)
+
+
+def parse_size(text: str, what: str = "--size") -> tuple[int, int]:
+    """``'WxH'`` -> (W, H) in pixels, each 64 to 4096."""
+    try:
+        w, h = (int(x) for x in text.lower().split("x"))
+    except ValueError:
+        raise InputError(f"{what} {text!r} is not WIDTHxHEIGHT, e.g. 960x720") from None
+    if not (64 <= w <= 4096 and 64 <= h <= 4096):
+        raise InputError(f"{what} {text!r}: width and height must be 64 to 4096 pixels")
+    return w, h
+
+
+def parse_opening(spec: str) -> Opening:
+    """``'NAME=X,Y,Z'`` -> an Opening."""
+    if "=" not in spec:
+        raise InputError(f"--opening {spec!r} is not NAME=X,Y,Z")
+    name, xyz = spec.split("=", 1)
+    return Opening(name.strip(), parse_vec(xyz, f"--opening {name}"))
+
+
+# ---------------------------------------------------------------------------- shared options
+
+
+def mesh_args(p: argparse.ArgumentParser) -> None:
+    g = p.add_argument_group("mesh input")
+    g.add_argument("--units", default="m", help="length unit of the mesh file: m, mm, cm, ft, in (default m)")
+    g.add_argument("--forward", default="+x", help="file axis pointing forward, e.g. +x, -y (default +x)")
+    g.add_argument("--up", default="+z", help="file axis pointing up, e.g. +z, +y for Y-up exports (default +z)")
+    g.add_argument("--offset", default="0,0,0", help="X,Y,Z added after scaling and axes [m]")
+    g.add_argument("--flip-inside-out", action="store_true", help="flip bodies found inside out (explicit repair)")
+    g.add_argument("--merge-overlaps", action="store_true", help="union overlapping bodies (explicit repair)")
+
+
+def out_args(p: argparse.ArgumentParser, formats: Sequence[str] = ("text", "csv", "json")) -> None:
+    p.add_argument("--format", choices=formats, default="text", help="output format (default text)")
+    p.add_argument("--out", help="write the output to this file (atomically) instead of standard output")
+
+
+def water_args(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--density", type=float, help="water density [t/m³] (default sea water 1.025)")
+    p.add_argument("--water", choices=("sea", "fresh"), help="sea (1.025 t/m³) or fresh (1.000 t/m³) water")
+
+
+def source_args(p: argparse.ArgumentParser) -> None:
+    """A case file, or a mesh with a quick load."""
+    p.add_argument("source", help="case file (.toml) or a mesh file with --displacement and --cog")
+    p.add_argument("--condition", help="name of the condition in the case file (default the first)")
+    g = p.add_argument_group("quick check without a case file")
+    g.add_argument("--displacement", type=float, help="displacement [t]")
+    g.add_argument("--cog", help="centre of gravity X,Y,Z [m], hull frame (Z is KG)")
+    g.add_argument("--fsm", type=float, default=0.0, help="free-surface moment [t·m] (raises G by FSM/Δ)")
+    g.add_argument("--opening", action="append", default=[], metavar="NAME=X,Y,Z",
+                   help="an opening for the downflooding angle (repeatable)")
+    water_args(p)
+    mesh_args(p)
+
+
+# ---------------------------------------------------------------------------- loading
+
+
+def density(args: argparse.Namespace, default: float | None = None) -> float:
+    """Water density [t/m³] from --density or --water, else ``default`` (sea water when None)."""
+    if getattr(args, "density", None) is not None:
+        return float(args.density)
+    w = getattr(args, "water", None)
+    if w == "fresh":
+        return FRESH_WATER
+    if w == "sea":
+        return SEA_WATER
+    return SEA_WATER if default is None else default
+
+
+def density_override(args: argparse.Namespace) -> float | None:
+    """The density the user asked for, or None to keep a case file's."""
+    if getattr(args, "density", None) is None and getattr(args, "water", None) is None:
+        return None
+    return density(args)
+
+
+def load_mesh(args: argparse.Namespace, path: str | None = None) -> FloatingHull:
+    return load_hull(path or args.mesh, units=args.units, forward=args.forward, up=args.up,
+                     offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
+                     merge_overlaps=args.merge_overlaps)
+
+
+def is_case(path: str) -> bool:
+    return path.lower().endswith(".toml")
+
+
+def load_source(args: argparse.Namespace) -> CaseInput:
+    """The hull and condition from a case file, or from a mesh with --displacement and --cog."""
+    if is_case(args.source):
+        if args.displacement is not None or args.cog:
+            raise InputError("give either a case file or --displacement/--cog with a mesh, not both")
+        return from_case(args.source, args.condition, density=density_override(args))
+    if args.displacement is None or not args.cog:
+        raise InputError(f"{args.source}: a mesh needs --displacement T and --cog X,Y,Z (or use a case file)")
+    hull = load_mesh(args, args.source)
+    ops = [parse_opening(s) for s in args.opening]
+    return from_mesh(hull, args.source, args.displacement, parse_vec(args.cog, "--cog"), fsm=args.fsm,
+                     openings=ops, density=density(args))
+
+
+def load_hull_source(args: argparse.Namespace) -> tuple[FloatingHull, float]:
+    """(hull, density) from a case file (its mesh and water) or a mesh file."""
+    if is_case(args.source):
+        from ..loading import read_case
+
+        case = read_case(args.source)
+        return case.load_hull(), density(args, case.density)
+    return load_mesh(args, args.source), density(args)
+
+
+# ---------------------------------------------------------------------------- output
+
+
+def progress(args: argparse.Namespace, total: int, label: str) -> Progress:
+    """A progress bar on a terminal, none with --quiet."""
+    return Progress(total, label, enabled=False if getattr(args, "quiet", False) else None)
+
+
+def write(args: argparse.Namespace, text: str) -> None:
+    """Text to --out (atomically) or standard output."""
+    emit(getattr(args, "out", None), text)
+
+
+def output(args: argparse.Namespace, doc: Document, plot: str | None = None) -> None:
+    """Draw the document's first figure to ``plot`` when asked, then write it in --format."""
+    if plot:
+        from ..plots import draw
+
+        figs = [f for s in doc.sections for f in s.figures]
+        draw(figs[0], plot)
+        print(f"wrote {plot}", file=sys.stderr)
+    write(args, render(doc, getattr(args, "format", "text")))

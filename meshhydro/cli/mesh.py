@@ -1,0 +1,55 @@
+"""Mesh commands: check (health report) and table (hydrostatics over drafts)."""
+from __future__ import annotations
+
+import argparse
+import sys
+
+from ..analysis import check_analysis, table_analysis
+from .common import density, load_mesh, mesh_args, out_args, output, parse_range, parse_vec, water_args
+
+
+# ---------------------------------------------------------------------------- check
+
+
+def cmd_check(args: argparse.Namespace) -> int:
+    from ..mesh import check_mesh
+
+    md, rep = check_mesh(args.mesh, units=args.units, forward=args.forward, up=args.up,
+                         offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
+                         merge_overlaps=args.merge_overlaps)
+    output(args, check_analysis(rep))
+    if not rep.usable:
+        print(f"meshhydro: {rep.problems[0]}", file=sys.stderr)
+        return 3
+    return 0
+
+
+# ---------------------------------------------------------------------------- table
+
+
+def cmd_table(args: argparse.Namespace) -> int:
+    drafts = parse_range(args.drafts, "--drafts")
+    hull = load_mesh(args)
+    _, doc = table_analysis(hull, drafts, heel=args.heel, trim=args.trim, density=density(args))
+    output(args, doc, args.plot)
+    return 0
+
+
+def register(sub: argparse._SubParsersAction) -> None:
+    """Add the check and table sub-commands."""
+    c = sub.add_parser("check", help="health report of a mesh (exit 0 when usable)")
+    c.add_argument("mesh")
+    mesh_args(c)
+    out_args(c, ("text", "json"))
+    c.set_defaults(func=cmd_check)
+
+    t = sub.add_parser("table", help="hydrostatic table over a range of drafts")
+    t.add_argument("mesh")
+    t.add_argument("--drafts", required=True, help="START:STOP:STEP [m] (STOP included) or a list 0.5,1,1.5")
+    t.add_argument("--heel", type=float, default=0.0, help="heel [deg], positive starboard down")
+    t.add_argument("--trim", type=float, default=0.0, help="trim [deg], positive bow down")
+    water_args(t)
+    mesh_args(t)
+    out_args(t)
+    t.add_argument("--plot", help="also draw the hydrostatic curves to this PNG")
+    t.set_defaults(func=cmd_table)

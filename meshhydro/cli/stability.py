@@ -1,0 +1,111 @@
+"""Stability commands: float, righting, cross-curves, criteria.
+
+Each takes either a case file (``.toml``) or a mesh with ``--displacement`` and ``--cog``
+for a quick check. The analyses decide; these functions parse, call and render.
+"""
+from __future__ import annotations
+
+import argparse
+
+from .. import analysis
+from ..criteria import read_criteria
+from .common import (
+    mesh_args,
+    load_hull_source,
+    load_source,
+    out_args,
+    output,
+    parse_range,
+    progress,
+    source_args,
+    water_args,
+)
+
+HEEL_HINT = "; use --direction for the side"
+
+
+def _heels(args: argparse.Namespace):
+    hs = parse_range(args.heels, "--heels")
+    return analysis.check_angles(hs, 0.0, 180.0, what="--heels", hint=HEEL_HINT)
+
+
+def cmd_float(args: argparse.Namespace) -> int:
+    _, doc = analysis.float_analysis(load_source(args))
+    output(args, doc)
+    return 0
+
+
+def cmd_righting(args: argparse.Namespace) -> int:
+    inp = load_source(args)
+    hs = _heels(args)
+    bar = progress(args, analysis.curve_count(hs, inp, args.direction), "righting curve")
+    _, doc = analysis.righting_analysis(inp, hs, direction=args.direction, free_trim=not args.fixed_trim,
+                                        progress=bar)
+    bar.close()
+    output(args, doc, args.plot)
+    return 0
+
+
+def cmd_cross(args: argparse.Namespace) -> int:
+    hull, rho = load_hull_source(args)
+    ds = parse_range(args.displacements, "--displacements")
+    hs = parse_range(args.heels, "--heels")
+    bar = progress(args, len(ds) * len(hs), "cross curves")
+    _, doc = analysis.cross_analysis(hull, ds, hs, density=rho, lcg=args.lcg, progress=bar)
+    bar.close()
+    output(args, doc, args.plot)
+    return 0
+
+
+def cmd_criteria(args: argparse.Namespace) -> int:
+    cset = read_criteria(args.set)
+    inp = load_source(args)
+    hs = _heels(args)
+    bar = progress(args, analysis.curve_count(hs, inp, args.direction), "righting curve")
+    rep, doc = analysis.criteria_analysis(inp, cset, hs, direction=args.direction, free_trim=not args.fixed_trim,
+                                          progress=bar)
+    bar.close()
+    output(args, doc, args.plot)
+    return 0 if rep.passed else 1
+
+
+def _curve_opts(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--heels", default="0:180:1", help="START:STOP:STEP from 0 to 180 [deg] (default 0:180:1)")
+    p.add_argument("--direction", choices=("auto", "both", "starboard", "port"), default="auto",
+                   help="heel side(s); auto = both unless hull and load are port-starboard symmetric")
+    p.add_argument("--fixed-trim", action="store_true", help="keep the upright trim instead of free trim")
+    p.add_argument("--plot", help="draw the GZ curve to this PNG")
+    p.add_argument("--quiet", action="store_true", help="no progress bar")
+
+
+def register(sub: argparse._SubParsersAction) -> None:
+    """Add the stability sub-commands."""
+    f = sub.add_parser("float", help="free-floating position (draft, heel, trim) for a loading condition")
+    source_args(f)
+    out_args(f)
+    f.set_defaults(func=cmd_float)
+
+    r = sub.add_parser("righting", help="righting-lever (GZ) curve with free trim, derived angles and areas")
+    source_args(r)
+    _curve_opts(r)
+    out_args(r)
+    r.set_defaults(func=cmd_righting)
+
+    c = sub.add_parser("cross-curves", help="KN over displacements and heels (free trim)")
+    c.add_argument("source", help="mesh file or case file (for the mesh and density)")
+    c.add_argument("--displacements", required=True, help="START:STOP:STEP [t] or a list")
+    c.add_argument("--heels", default="0:90:10", help="heels [deg] (default 0:90:10)")
+    c.add_argument("--lcg", type=float, help="fixed LCG [m] instead of level upright flotation")
+    c.add_argument("--plot", help="draw the cross curves to this PNG")
+    c.add_argument("--quiet", action="store_true", help="no progress bar")
+    water_args(c)
+    mesh_args(c)
+    out_args(c)
+    c.set_defaults(func=cmd_cross)
+
+    k = sub.add_parser("criteria", help="check a condition against a criteria set (exit 1 when not met)")
+    source_args(k)
+    k.add_argument("--set", default="imo2008", help="imo2008 (built-in) or a criteria TOML file")
+    _curve_opts(k)
+    out_args(k)
+    k.set_defaults(func=cmd_criteria)

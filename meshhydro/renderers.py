@@ -1,0 +1,85 @@
+"""Renderers: a :class:`~meshhydro.document.Document` as text, CSV or JSON.
+
+Text: the title and header lines, then the sections separated by blank lines (a section is its
+title, its key values, its tables, its sub-sections and its notes, one under the other), then
+the verdict and the cautions. CSV: the document's primary table (every column), or the values of
+its primary section as ``quantity,value,unit`` rows. JSON: the analysis' own payload when it has
+one, else the whole document. Renderers format; they decide nothing.
+"""
+from __future__ import annotations
+
+import dataclasses
+from typing import Callable
+
+from .document import Document, Quantity, Section, Table
+from .errors import InputError
+from .output import key_values, text_table, to_csv, to_json
+
+
+def _values_text(values: list[Quantity]) -> str:
+    return key_values([(q.label, q.value, q.unit) for q in values]).rstrip()
+
+
+def table_text(t: Table) -> str:
+    """An aligned text table with a units line when any column has a unit."""
+    cols = {c.key: c for c in t.columns}
+    keys = t.text_keys if t.text_keys is not None else [c.key for c in t.columns]
+    units = {k: cols[k].unit for k in keys if cols[k].unit}
+    digits = {k: cols[k].digits for k in keys}
+    heads = {k: cols[k].label for k in keys}
+    lines = [t.title] if t.title else []
+    lines.append(text_table(t.rows, keys, units, digits, heads).rstrip())
+    return "\n".join(lines + t.notes)
+
+
+def section_text(s: Section) -> str:
+    parts = [s.title] if s.title else []
+    parts += [_values_text(s.values)] if s.values else []
+    parts += [table_text(t) for t in s.tables]
+    parts += [section_text(x) for x in s.sections]
+    parts += s.notes
+    return "\n".join(parts)
+
+
+def render_text(doc: Document) -> str:
+    """The document as plain text (ends with a newline)."""
+    parts = [doc.title] + doc.header
+    if doc.sections:
+        parts.append("\n\n".join(section_text(s) for s in doc.sections))
+    if doc.verdict is not None and doc.verdict_text:
+        parts.append(f"verdict: {doc.verdict_text}")
+    return "\n".join(parts + doc.cautions) + "\n"
+
+
+def render_csv(doc: Document) -> str:
+    """The primary table (all columns) or the primary section's values as CSV."""
+    try:
+        t = doc.table(doc.primary)
+        return to_csv(t.rows, [c.key for c in t.columns])
+    except KeyError:
+        pass
+    try:
+        s = doc.section(doc.primary)
+    except KeyError:
+        raise InputError(f"{doc.title}: this output has no table to write as CSV") from None
+    rows = [{"quantity": q.label, "value": q.value, "unit": q.unit} for q in s.values]
+    return to_csv(rows, ["quantity", "value", "unit"])
+
+
+def render_json(doc: Document) -> str:
+    """The analysis' payload as JSON, or the whole document when it has none."""
+    if doc.data is not None:
+        return to_json(doc.data)
+    return to_json(dataclasses.asdict(doc))
+
+
+#: format name -> renderer; a new format adds an entry here
+RENDERERS: dict[str, Callable[[Document], str]] = {"text": render_text, "csv": render_csv, "json": render_json}
+
+
+def render(doc: Document, fmt: str) -> str:
+    """``doc`` in format ``fmt`` (a key of :data:`RENDERERS`)."""
+    fn = RENDERERS.get(fmt)
+    if fn is None:
+        raise InputError(f"unknown output format {fmt!r}; known: {', '.join(RENDERERS)}")
+    return fn(doc)

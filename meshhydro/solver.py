@@ -1,0 +1,422 @@
+"""The floating-position solver shared by equilibrium and stability curves.
+
+The waterplane is written ``n(phi, theta) . (x - K) = depth`` with K = (x_ref, 0, 0) the
+keel reference point and ``depth`` the vertical depth of K below the water surface (so
+the draft at the reference point is ``T = depth / n_z``). Unknowns are (depth, heel,
+trim); the residuals are the relative volume error and the horizontal levers of B about
+G, transverse and longitudinal, over the hull length L. Newton's method uses the exact
+Jacobian from the waterplane properties: moving the plane by ``h(x) = dd - dn . (x - K)``
+changes
+
+    dV = ∫ h dA = A dd - dn . A (F - K)
+    dM = ∫ x h dA = A F dd - (J + A F (F - K)ᵀ) dn,    dB = (dM - B dV) / V
+
+with A, F, J the waterplane area, centroid and second-moment tensor. Steps are limited
+and backtracked on the residual norm, and the volume alone is always re-solved by a
+bracketed one-dimensional search (V is monotone in depth). The load is asked for G at
+each attitude (:class:`meshhydro.load.Load`), so a G that moves with the fluid in a tank
+needs no change here. Every tolerance is in :mod:`meshhydro.tolerances`.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Callable, Sequence
+
+import numpy as np
+
+from . import kernel
+from . import tolerances as tol
+from .errors import CannotFloatError, InputError, NotConvergedError, OpenRimError
+from .frames import longitudinal_direction, transverse_direction, up_derivatives, up_vector
+from .hull import Hull
+from .hydrostatics import check_density
+from .load import Load
+
+
+@dataclass(frozen=True, eq=False)
+class State:
+    """One evaluated floating position (hull frame, SI; angles in degrees).
+
+    ``depth`` [m] is the vertical depth of K = (x_ref, 0, 0) below the water surface.
+    """
+
+    depth: float
+    heel: float
+    trim: float
+    cut: kernel.Cut
+
+    @property
+    def up(self) -> np.ndarray:
+        """Earth's upward vertical (3,) in the hull frame."""
+        return self.cut.normal
+
+    @property
+    def draft(self) -> float:
+        """Draft [m] along the hull z axis at (x_ref, 0)."""
+        return self.depth / float(self.cut.normal[2])
+
+
+class Evaluator:
+    """Evaluates states of one hull and counts kernel evaluations."""
+
+    def __init__(self, hull: Hull) -> None:
+        self.hull = hull
+        self.prep: kernel.Prepared = hull.prepared
+        self.K = np.array([hull.x_ref, 0.0, 0.0])
+        self.count = 0
+        self.L = max(hull.length, tol.TINY_LENGTH)
+        #: hull vertices relative to K (n, 3) [m], for the extent of the hull along a normal
+        self.rel = self.prep.vertices + (self.prep.origin - self.K)
+
+    def state(self, depth: float, heel: float, trim: float) -> State:
+        n = up_vector(heel, trim)
+        self.count += 1
+        c = kernel.cut(self.prep, self.K + depth * n, n)
+        return State(float(depth), float(heel), float(trim), c)
+
+    def depth_range(self, heel: float, trim: float) -> tuple[float, float]:
+        """Least and largest depth [m] of K at which the plane touches the hull."""
+        h = self.rel @ up_vector(heel, trim)
+        return float(h.min()), float(h.max())
+
+
+def residuals(st: State, v0: float, load: Load, L: float) -> np.ndarray:
+    """Scaled residuals (3,): relative volume error, transverse and longitudinal levers of B about G over L."""
+    c = st.cut
+    bg = c.centroid - load.centre(st.heel, st.trim)
+    return np.array([
+        (c.volume - v0) / v0,
+        bg @ transverse_direction(st.heel) / L,
+        bg @ longitudinal_direction(st.heel, st.trim) / L,
+    ])
+
+
+def jacobian(st: State, v0: float, load: Load, K: np.ndarray, L: float) -> np.ndarray:
+    """Jacobian (3, 3) of :func:`residuals` with respect to (depth [m], heel [rad], trim [rad])."""
+    c = st.cut
+    A, F, V, B = c.waterplane_area, c.waterplane_centroid, max(c.volume, tol.TINY_VOLUME), c.centroid
+    g = load.centre(st.heel, st.trim)
+    dg = load.centre_derivatives(st.heel, st.trim)
+    dn_phi, dn_th = up_derivatives(st.heel, st.trim)
+    et = transverse_direction(st.heel)
+    el = longitudinal_direction(st.heel, st.trim)
+    ph, th = math.radians(st.heel), math.radians(st.trim)
+    det_phi = np.array([0.0, -math.sin(ph), -math.cos(ph)])
+    del_phi = np.array([0.0, math.cos(ph) * math.sin(th), -math.sin(ph) * math.sin(th)])
+    del_th = np.array([-math.sin(th), math.sin(ph) * math.cos(th), math.cos(ph) * math.cos(th)])
+    FK = F - K
+    P = c.inertia_tensor + A * np.outer(F, FK)
+    out = np.zeros((3, 3))
+    bg = B - g
+    zero = np.zeros(3)
+    for j, (ds, dn) in enumerate(((1.0, zero), (0.0, dn_phi), (0.0, dn_th))):
+        dV = A * ds - dn @ (A * FK)
+        dM = A * F * ds - P @ dn
+        dB = (dM - B * dV) / V
+        if j:
+            dB = dB - dg[:, j - 1]
+        out[0, j] = dV / v0
+        d_et = det_phi if j == 1 else zero
+        d_el = del_phi if j == 1 else (del_th if j == 2 else zero)
+        out[1, j] = (dB @ et + bg @ d_et) / L
+        out[2, j] = (dB @ el + bg @ d_el) / L
+    return out
+
+
+def converged(r: np.ndarray, rows: Sequence[int]) -> bool:
+    """True when the residuals ``r`` (3,) meet the tolerances in the solved rows (0 volume, 1 heel, 2 trim)."""
+    ok = abs(r[0]) <= tol.VOLUME_TOL
+    for k in rows[1:]:
+        ok = ok and abs(r[k]) <= tol.LEVER_TOL
+    return bool(ok)
+
+
+def check_load(hull: Hull, displacement: float, density: float) -> tuple[float, float]:
+    """(density [t/m³], volume to displace [m³]) after checking that the closed hull can carry the load."""
+    rho = check_density(density)
+    d = float(displacement)
+    if not math.isfinite(d) or d <= 0:
+        raise InputError(f"displacement must be a positive number of tonnes, got {displacement!r}")
+    v0 = d / rho
+    if hull.report.closed and v0 >= hull.total_volume * (1 - tol.FULLY_SUBMERGED):
+        raise CannotFloatError(
+            f"the load needs {d:.6g} t but the closed hull displaces at most {hull.total_volume * rho:.6g} t "
+            f"fully submerged (ρ = {rho:g} t/m³): it cannot float")
+    return rho, v0
+
+
+def metacentric_heights(st: State, g: np.ndarray, dg: np.ndarray | None = None) -> tuple[float, float]:
+    """GMt and GMl [m] at a floating position for G (3,) [m]: BM + (B - G) . up.
+
+    ``dg`` (3, 2) [m per rad] is the motion of G with heel and trim (a load's
+    ``centre_derivatives``); it adds dG/dq . dup/dq, the loss of GM to a shifting load.
+    """
+    c = st.cut
+    v = max(c.volume, tol.TINY_VOLUME)
+    bg = (c.centroid - g) @ c.normal
+    gmt, gml = c.inertia_t / v + bg, c.inertia_l / v + bg
+    if dg is not None:
+        d_phi, d_th = up_derivatives(st.heel, st.trim)
+        gmt += float(dg[:, 0] @ d_phi)
+        gml += float(dg[:, 1] @ d_th)
+    return gmt, gml
+
+
+def load_metacentric_heights(st: State, load: Load) -> tuple[float, float]:
+    """GMt and GMl [m] of a load at a floating position, its shift of G with the attitude included."""
+    return metacentric_heights(st, load.centre(st.heel, st.trim), load.centre_derivatives(st.heel, st.trim))
+
+
+def freeboard(st: State, K: np.ndarray, pts: np.ndarray) -> np.ndarray:
+    """Heights (k,) [m] of points (k, 3) [m, hull frame] above the water surface at a state."""
+    return (pts - K) @ st.cut.normal - st.depth
+
+
+# ---------------------------------------------------------------------------- volume
+
+
+def solve_volume(ev: Evaluator, v0: float, heel: float, trim: float, start: float | None = None) -> State:
+    """Bracketed Newton on the depth at fixed heel and trim so that V = v0 [m³] (V is monotone in depth).
+
+    Raises CannotFloatError (too heavy for a closed hull), OpenRimError (an open rim is reached
+    first) or NotConvergedError.
+    """
+    lo, hi = ev.depth_range(heel, trim)
+    closed = bool(ev.hull.report.closed)
+    vmax = ev.hull.total_volume if closed else None
+    if vmax is not None and v0 >= vmax * (1 - tol.FULLY_SUBMERGED):
+        raise CannotFloatError(f"the load needs {v0:.6g} m³ of displacement but the closed hull holds at most "
+                               f"{ev.hull.total_volume:.6g} m³ (fully submerged): it cannot float")
+    a, b = lo, hi
+    frac = 0.5 if vmax is None else min(max(v0 / vmax, 0.05), 0.95)
+    d = start if start is not None and lo < start < hi else lo + (hi - lo) * frac
+    scale = max(ev.L, 1.0)
+    best = None
+    rim: OpenRimError | None = None
+    for _ in range(tol.VOLUME_MAX_ITER):
+        try:
+            st = ev.state(d, heel, trim)
+        except OpenRimError as exc:
+            rim = exc
+            b = d  # the rim is under water here: the answer lies lower
+            if b - a < tol.RIM_BRACKET * scale:
+                break
+            d = 0.5 * (a + b)
+            continue
+        r = st.cut.volume - v0
+        if abs(r) <= tol.VOLUME_TOL * v0:
+            return st
+        if r < 0:
+            a = d
+        else:
+            b = d
+        best = st
+        A = st.cut.waterplane_area
+        d_new = d - r / A if A > 0 else 0.5 * (a + b)
+        if not (a < d_new < b):
+            d_new = 0.5 * (a + b)
+        if b - a < tol.VOLUME_BRACKET * scale:
+            break
+        d = d_new
+    if best is not None and abs(best.cut.volume - v0) <= tol.VOLUME_ACCEPT * v0:
+        return best
+    if rim is not None or (not closed and best is not None and best.cut.volume < v0):
+        held = best.cut.volume if best is not None and best.cut.volume < v0 else None
+        more = f" (the open hull holds about {held:.6g} m³ below its rim there)" if held else ""
+        detail = f": {rim}" if rim is not None else ""
+        raise OpenRimError(f"the load needs {v0:.6g} m³ of displacement but the water reaches an open rim "
+                           f"of the mesh first at heel {heel:g}°, trim {trim:g}°{more}{detail}")
+    raise NotConvergedError(f"could not find the draft for volume {v0:.6g} m³ at heel {heel:g}°, trim {trim:g}°")
+
+
+# ---------------------------------------------------------------------------- Newton
+
+
+@dataclass(frozen=True, eq=False)
+class NewtonResult:
+    """Outcome of :func:`newton`: the last state, whether it met the tolerances, steps and residuals (3,)."""
+
+    state: State
+    converged: bool
+    iterations: int
+    residual: np.ndarray
+
+
+def _limited_step(ev: Evaluator, dq: np.ndarray, rows: list[int]) -> np.ndarray:
+    """Scale a Newton step so that no angle and no depth change exceeds its limit."""
+    max_step = {1: math.radians(tol.MAX_HEEL_STEP), 2: math.radians(tol.MAX_TRIM_STEP)}
+    scale = 1.0
+    for k, var in enumerate(rows[1:], start=1):
+        if abs(dq[k]) > max_step[var]:
+            scale = min(scale, max_step[var] / abs(dq[k]))
+    ds_lim = tol.DRAFT_STEP_DEPTH * ev.hull.depth + tol.DRAFT_STEP_SIZE * ev.hull.size
+    if abs(dq[0]) > ds_lim:
+        scale = min(scale, ds_lim / abs(dq[0]))
+    return dq * scale
+
+
+def _newton_direction(J: np.ndarray, rr: np.ndarray) -> np.ndarray:
+    try:
+        dq = np.linalg.solve(J, -rr)
+        if not np.all(np.isfinite(dq)):
+            raise np.linalg.LinAlgError
+    except np.linalg.LinAlgError:
+        dq = -np.linalg.lstsq(J, rr, rcond=None)[0]
+    return dq
+
+
+def _backtrack(ev: Evaluator, v0: float, load: Load, st: State, dq: np.ndarray, rows: list[int],
+               f0: float) -> tuple[State, np.ndarray] | None:
+    """Line search along ``dq`` on the squared residual norm; None when every trial fails."""
+    lam = 1.0
+    for _ in range(tol.BACKTRACK_STEPS):
+        depth = st.depth + lam * dq[0]
+        heel = st.heel + (math.degrees(lam * dq[rows.index(1)]) if 1 in rows else 0.0)
+        trim = st.trim + (math.degrees(lam * dq[rows.index(2)]) if 2 in rows else 0.0)
+        try:
+            cand = ev.state(depth, heel, trim)
+        except OpenRimError:
+            lam *= 0.5
+            continue
+        rc = residuals(cand, v0, load, ev.L)
+        if float(rc[rows] @ rc[rows]) < (1 - tol.ARMIJO * lam) * f0 or lam < tol.MIN_STEP_FRACTION:
+            return cand, rc
+        lam *= 0.5
+    return None
+
+
+def newton(ev: Evaluator, v0: float, load: Load, start: State, *, free_heel: bool, free_trim: bool,
+           max_iter: int = tol.NEWTON_MAX_ITER) -> NewtonResult:
+    """Newton on (depth[, heel][, trim]) from ``start``; the volume is always free."""
+    rows = [0] + ([1] if free_heel else []) + ([2] if free_trim else [])
+    st = start
+    r = residuals(st, v0, load, ev.L)
+    for it in range(1, max_iter + 1):
+        if converged(r, rows):
+            return NewtonResult(st, True, it - 1, r)
+        Jf = jacobian(st, v0, load, ev.K, ev.L)[np.ix_(rows, rows)]
+        rr = r[rows]
+        dq = _limited_step(ev, _newton_direction(Jf, rr), rows)
+        accepted = _backtrack(ev, v0, load, st, dq, rows, float(rr @ rr))
+        if accepted is None:
+            # re-solve the volume alone at the current attitude and continue
+            cand = solve_volume(ev, v0, st.heel, st.trim, st.depth)
+            accepted = (cand, residuals(cand, v0, load, ev.L))
+        st, r = accepted
+    return NewtonResult(st, converged(r, rows), max_iter, r)
+
+
+# ---------------------------------------------------------------------------- angle stepping
+
+
+def bracketed_trim(ev: Evaluator, v0: float, load: Load, heel: float, t0: float) -> NewtonResult:
+    """Free trim at one heel by Brent's method on the longitudinal lever, with V = v0
+    solved exactly for each trial trim (continuous in trim, so a bracket converges)."""
+    from scipy.optimize import brentq
+
+    cache: dict[float, State] = {}
+
+    def lever(t: float) -> float:
+        st = solve_volume(ev, v0, heel, t, None)
+        cache[t] = st
+        return float(residuals(st, v0, load, ev.L)[2])
+
+    f0 = lever(t0)
+    step = tol.TRIM_BRACKET_START
+    bracket = None
+    while step <= tol.TRIM_BRACKET_MAX:
+        lo, hi = max(t0 - step, -tol.TRIM_LIMIT), min(t0 + step, tol.TRIM_LIMIT)
+        flo, fhi = lever(lo), lever(hi)
+        if flo * f0 <= 0:
+            bracket = (lo, t0) if lo < t0 else None
+            break
+        if fhi * f0 <= 0:
+            bracket = (t0, hi)
+            break
+        step *= 2.0
+    if bracket is None:
+        st = cache[t0]
+        return NewtonResult(st, False, 0, residuals(st, v0, load, ev.L))
+    t = brentq(lever, bracket[0], bracket[1], xtol=tol.BRENT_XTOL, rtol=tol.BRENT_RTOL, maxiter=tol.BRENT_MAX_ITER)
+    st = cache.get(t) or solve_volume(ev, v0, heel, t, None)
+    res = newton(ev, v0, load, st, free_heel=False, free_trim=True, max_iter=tol.POLISH_MAX_ITER)
+    if not res.converged:
+        r = residuals(st, v0, load, ev.L)
+        return NewtonResult(st, converged(r, [0, 2]), 0, r)
+    return res
+
+
+def _guess(ev: Evaluator, v0: float, heel: float, hist: list[State]) -> State:
+    """Starting state at ``heel``: linear extrapolation of the two previous solutions."""
+    if len(hist) >= 2:
+        a, b = hist[-2], hist[-1]
+        w = (heel - b.heel) / (b.heel - a.heel) if b.heel != a.heel else 0.0
+        d0 = b.depth + w * (b.depth - a.depth)
+        t0 = b.trim + w * (b.trim - a.trim)
+    else:
+        d0, t0 = hist[-1].depth, hist[-1].trim
+    lo, hi = ev.depth_range(heel, t0)
+    if not (lo < d0 < hi):
+        return solve_volume(ev, v0, heel, t0)
+    try:
+        return ev.state(d0, heel, t0)
+    except OpenRimError:
+        return solve_volume(ev, v0, heel, t0)
+
+
+def step_angles(ev: Evaluator, v0: float, load: Load, heels: np.ndarray, start: State, free_trim: bool,
+                progress: Callable[[], object] | None = None) -> list[tuple[State, int]]:
+    """Solve each heel [deg] of ``heels`` (monotone away from ``start.heel``) by continuation.
+
+    Returns (state, kernel evaluations spent) per heel. With ``free_trim`` the trim balances the
+    longitudinal moment (bracketed search where Newton stalls); otherwise it stays at the start's.
+    """
+    out: list[tuple[State, int]] = []
+    hist: list[State] = [start]
+    for h in heels:
+        before = ev.count
+        if abs(h - start.heel) < tol.SAME_ANGLE:
+            st = start
+        else:
+            guess = _guess(ev, v0, float(h), hist)
+            res = newton(ev, v0, load, guess, free_heel=False, free_trim=free_trim)
+            if not res.converged and free_trim:
+                res = bracketed_trim(ev, v0, load, float(h), hist[-1].trim)
+            if not res.converged:
+                raise NotConvergedError(
+                    f"free-trim position not found at heel {h:g}° (volume residual {res.residual[0]:.2e}, "
+                    f"trim lever {abs(res.residual[2]) * ev.L:.2e} m)")
+            st = res.state
+        hist.append(st)
+        out.append((st, ev.count - before))
+        if progress is not None:
+            progress()
+    return out
+
+
+def find_loll(ev: Evaluator, v0: float, load: Load, upright: State) -> State | None:
+    """From an unstable upright position, the nearest stable heeled equilibrium (either side), or None."""
+    best = None
+    for sign in (1.0, -1.0):
+        hs = sign * np.arange(tol.LOLL_STEP, tol.LOLL_LAST, tol.LOLL_STEP)
+        prev = None
+        for st, _ in step_angles(ev, v0, load, hs, upright, True):
+            gz = (load.centre(st.heel, st.trim) - st.cut.centroid) @ transverse_direction(st.heel)
+            if prev is not None and prev * sign <= 0 < gz * sign:
+                res = newton(ev, v0, load, st, free_heel=True, free_trim=True)
+                if res.converged and (best is None or abs(res.state.heel) < abs(best.heel) - tol.LOLL_TIE):
+                    best = res.state
+                break
+            prev = gz
+    # a symmetric load lolls equally both ways: the starboard (positive) angle is kept on ties
+    return best
+
+
+def upright_free_trim(ev: Evaluator, v0: float, load: Load) -> State:
+    """The upright position with free trim (heel held at 0)."""
+    st0 = solve_volume(ev, v0, 0.0, 0.0)
+    r0 = newton(ev, v0, load, st0, free_heel=False, free_trim=True)
+    if not r0.converged:
+        raise NotConvergedError("the upright free-trim position was not found")
+    return r0.state
