@@ -50,7 +50,8 @@ import numpy as np
 from . import tolerances as tol
 from .errors import InputError
 from .hydrostatics import Hydrostatics
-from .loading import Opening, read_toml
+from .loading import Opening
+from .schemas import read_toml
 from .stability import RightingCurve
 
 #: The caution that every output a safety decision could rest on carries.

@@ -36,8 +36,6 @@ Example::
 from __future__ import annotations
 
 import math
-import os
-import tomllib
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -162,7 +160,11 @@ class Opening:
 
 @dataclass(frozen=True)
 class Case:
-    """A parsed case file."""
+    """A parsed, validated case file.
+
+    ``spec`` is the whole validated file (:class:`meshhydro.schemas.CaseSpec`): tanks, compartments,
+    windage, weather, heeling arms and the criteria set are read from it by the analyses that use them.
+    """
 
     path: str
     mesh: str
@@ -173,6 +175,11 @@ class Case:
     density: float = SEA_WATER
     openings: tuple[Opening, ...] = ()
     conditions: tuple[Condition, ...] = field(default_factory=tuple)
+    flip_inside_out: bool = False
+    merge_overlaps: bool = False
+    x_ref: float | None = None
+    name: str | None = None
+    spec: Any = None
 
     def condition(self, name: str | None = None) -> Condition:
         """The named condition, or the first one."""
@@ -184,66 +191,35 @@ class Case:
         raise InputError(f"{self.path}: no condition named {name!r}; have {[c.name for c in self.conditions]}")
 
     def load_hull(self) -> FloatingHull:
-        """Load and check the case's hull mesh."""
-        return load_hull(self.mesh, units=self.units, forward=self.forward, up=self.up, offset=self.offset)
+        """Load and check the case's hull mesh with the case's own mesh options and repairs."""
+        return load_hull(self.mesh, units=self.units, forward=self.forward, up=self.up, offset=self.offset,
+                         flip_inside_out=self.flip_inside_out, merge_overlaps=self.merge_overlaps,
+                         x_ref=self.x_ref, name=self.name)
 
 
-def read_toml(path: str, missing: str = "no such file") -> dict[str, Any]:
-    """Parse a TOML file; a missing or malformed file is an :class:`InputError` naming it."""
-    if not os.path.exists(path):
-        raise InputError(f"{path}: {missing}")
-    try:
-        with open(path, "rb") as fh:
-            return tomllib.load(fh)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{path}: not valid TOML ({exc})") from None
+def _condition_from_spec(c: Any) -> Condition:
+    """A :class:`Condition` from a validated ``[[condition]]`` entry (mass items, or displacement and cog)."""
+    if c.items is not None:
+        items = [MassItem(i.name, float(i.mass), tuple(float(x) for x in i.at), float(i.fsm or 0.0))
+                 for i in c.items]
+        cond = condition_from_items(c.name, items)
+        if c.fsm:
+            cond = Condition(cond.name, cond.displacement, cond.cog, cond.fsm + float(c.fsm), cond.items)
+        return cond
+    return Condition(c.name, float(c.displacement), tuple(float(x) for x in c.cog), float(c.fsm or 0.0))
 
 
 def read_case(path: str) -> Case:
-    """Read and validate a case file; errors name the file and the key."""
-    data = read_toml(path)
-    hull = data.get("hull")
-    if not isinstance(hull, dict) or "mesh" not in hull:
-        raise InputError(f"{path}: needs a [hull] table with mesh = \"file\"")
-    base = os.path.dirname(os.path.abspath(path))
-    mesh = os.path.normpath(os.path.join(base, str(hull["mesh"])))
-    known = {"mesh", "units", "forward", "up", "offset"}
-    extra = set(hull) - known
-    if extra:
-        raise InputError(f"{path}: [hull] has unknown keys {sorted(extra)}; known: {sorted(known)}")
-    water = data.get("water", {})
-    density = _num(water.get("density", SEA_WATER), f"{path}: [water] density", positive=True)
-    openings = []
-    for k, o in enumerate(data.get("opening", [])):
-        where = f"{path}: opening {k + 1}"
-        if "at" not in o:
-            raise InputError(f"{where}: needs at = [x, y, z]")
-        openings.append(Opening(str(o.get("name", f"opening {k + 1}")), _vec(o["at"], where + " at")))
-    conds = []
-    for k, c in enumerate(data.get("condition", [])):
-        name = str(c.get("name", f"condition {k + 1}"))
-        where = f"{path}: condition {name!r}"
-        if "items" in c:
-            items = []
-            for j, it in enumerate(c["items"]):
-                w = f"{where} item {j + 1}"
-                if "mass" not in it or "at" not in it:
-                    raise InputError(f"{w}: needs mass and at")
-                items.append(MassItem(str(it.get("name", f"item {j + 1}")), _num(it["mass"], w + " mass"),
-                                      _vec(it["at"], w + " at"), _num(it.get("fsm", 0.0), w + " fsm", nonneg=True)))
-            cond = condition_from_items(name, items)
-            if "fsm" in c:
-                cond = Condition(cond.name, cond.displacement, cond.cog,
-                                 cond.fsm + _num(c["fsm"], where + " fsm", nonneg=True), cond.items)
-        elif "displacement" in c and "cog" in c:
-            cond = Condition(name, _num(c["displacement"], where + " displacement", positive=True),
-                             _vec(c["cog"], where + " cog"), _num(c.get("fsm", 0.0), where + " fsm", nonneg=True))
-        else:
-            raise InputError(f"{where}: give either items = [...] or displacement and cog")
-        conds.append(cond)
-    if not conds:
+    """Read and validate a case file; errors name the file and the key (strict: unknown keys are refused)."""
+    from .schemas import read_toml, validate_case
+
+    spec = validate_case(read_toml(path), path)
+    h = spec.hull
+    if not spec.conditions:
         raise InputError(f"{path}: no [[condition]] given")
-    off = _vec(hull.get("offset", [0.0, 0.0, 0.0]), f"{path}: [hull] offset")
-    return Case(path=path, mesh=mesh, units=str(hull.get("units", "m")), forward=str(hull.get("forward", "+x")),
-                up=str(hull.get("up", "+z")), offset=off, density=density, openings=tuple(openings),
-                conditions=tuple(conds))
+    return Case(path=path, mesh=spec.mesh_path, units=h.units, forward=h.forward, up=h.up,
+                offset=tuple(float(x) for x in h.offset), density=spec.water.rho,
+                openings=tuple(Opening(o.name, tuple(float(x) for x in o.at)) for o in spec.openings),
+                conditions=tuple(_condition_from_spec(c) for c in spec.conditions),
+                flip_inside_out=h.flip_inside_out, merge_overlaps=h.merge_overlaps, x_ref=h.x_ref,
+                name=h.name, spec=spec)

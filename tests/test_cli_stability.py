@@ -154,4 +154,4 @@ def test_bad_case_file(tmp_path):
     p = tmp_path / "c.toml"
     p.write_text('[hull]\nmesh = "x.stl"\n[[condition]]\nname = "a"\nitems = [ { name = "m", mass = "heavy", at = [0,0,0] } ]\n')
     code, out, err = run("float", str(p))
-    assert code == 2 and "item 1 mass" in err
+    assert code == 2 and "[condition 1] items[1].mass: must be a number" in err and len(err.strip().splitlines()) == 1
