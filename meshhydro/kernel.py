@@ -20,12 +20,16 @@ pass with the same rules sits beside it in :mod:`meshhydro.kernel_compiled`.
 """
 from __future__ import annotations
 
+import math
+import os
 from dataclasses import dataclass, field
 
 import numpy as np
 
+from . import kernel_compiled
 from .errors import InputError, OpenRimError
-from .kernel_clip import Clip, clip, plane_axes
+from .kernel_clip import Clip, plane_axes
+from .kernel_clip import clip as clip_numpy
 from .kernel_prep import GROUP_SIZE, LEAF_SIZE, Prepared, prepare
 
 __all__ = [
@@ -166,19 +170,61 @@ def unit_normal(normal: np.ndarray) -> np.ndarray:
         When the normal is not three finite numbers or is the zero vector.
     """
     n = np.asarray(normal, dtype=np.float64).reshape(-1)
-    if n.shape != (3,) or not np.all(np.isfinite(n)):
+    if n.shape != (3,) or not (math.isfinite(n[0]) and math.isfinite(n[1]) and math.isfinite(n[2])):
         raise InputError(f"normal must be three finite numbers, got {normal!r}")
-    big = float(np.abs(n).max())
+    big = max(abs(n[0]), abs(n[1]), abs(n[2]))
     if big == 0.0:
         raise InputError("normal must not be the zero vector")
     n = n / big
-    return n / np.linalg.norm(n)
+    return n / math.sqrt(n[0] * n[0] + n[1] * n[1] + n[2] * n[2])
 
 
-def _cap(seg: np.ndarray, o: np.ndarray, u: np.ndarray, v: np.ndarray) -> tuple[float, np.ndarray, tuple]:
-    """Area, first moment A·c (3,) about the centred origin, and the raw Green moments."""
-    g = waterplane_moments(seg, o, u, v)
-    return g[0], g[0] * o + g[1] * u + g[2] * v, g
+#: Kernel pass used when ``backend`` is not given: "compiled" when numba imports, else
+#: "numpy"; the environment variable ``MESHHYDRO_KERNEL=numpy`` forces the reference pass.
+DEFAULT_BACKEND = (
+    "numpy" if os.environ.get("MESHHYDRO_KERNEL", "").lower() == "numpy" or not kernel_compiled.AVAILABLE
+    else "compiled"
+)
+
+
+def _backend(backend: str | None) -> str:
+    name = DEFAULT_BACKEND if backend is None else backend
+    if name not in ("numpy", "compiled"):
+        raise InputError(f"kernel backend must be 'numpy' or 'compiled', got {backend!r}")
+    if name == "compiled" and not kernel_compiled.AVAILABLE:
+        raise InputError("the compiled kernel needs numba, which cannot be imported here")
+    return name
+
+
+def clip(prep: Prepared, n: np.ndarray, d: float, *, cull: bool = True, backend: str | None = None) -> Clip:
+    """Face sums and oriented cut segments for the plane ``n . x = d`` (centred frame, unit n).
+
+    See :func:`meshhydro.kernel_clip.clip`; ``backend`` as in :func:`cut`.
+    """
+    if _backend(backend) == "compiled":
+        return kernel_compiled.clip(prep, n, d, cull=cull)
+    return clip_numpy(prep, n, d, cull=cull)
+
+
+def _pass_numpy(prep: Prepared, n: np.ndarray, d: float, o: np.ndarray, u: np.ndarray, v: np.ndarray,
+                cull: bool) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Reference pass: face sums (5,), Green moments (6,) of the section below, all
+    waterplane segments (in + flat) and the flat ones."""
+    cl = clip_numpy(prep, n, d, cull=cull)
+    sums = np.concatenate([[cl.det], cl.mom, [cl.area]])
+    green = np.array(waterplane_moments(cl.seg, o, u, v))
+    wseg = np.concatenate([cl.seg, cl.flat]) if len(cl.flat) else cl.seg
+    return sums, green, wseg, cl.flat
+
+
+def _extent_rows(seg: np.ndarray, o: np.ndarray, u: np.ndarray, v: np.ndarray) -> np.ndarray:
+    """Least and greatest u, v and x (6,) over segment ends (inf when there are none)."""
+    if len(seg) == 0:
+        return np.array([np.inf, -np.inf, np.inf, -np.inf, np.inf, -np.inf])
+    pts = seg.reshape(-1, 3)
+    pu = (pts - o) @ u
+    pv = (pts - o) @ v
+    return np.array([pu.min(), pu.max(), pv.min(), pv.max(), pts[:, 0].min(), pts[:, 0].max()])
 
 
 def cut(
@@ -188,6 +234,7 @@ def cut(
     *,
     segments: bool = False,
     cull: bool = True,
+    backend: str | None = None,
 ) -> Cut:
     """Exact submerged properties below the plane through ``point`` with ``normal``.
 
@@ -204,39 +251,68 @@ def cut(
     cull : bool
         Take or skip whole blocks where that is certain (default); False opens every
         block and must give the same result (for tests).
+    backend : {"compiled", "numpy"}, optional
+        The kernel pass; default :data:`DEFAULT_BACKEND`. Both give the same result
+        (to rounding in the order of summation).
 
     Raises
     ------
     OpenRimError
         If an open rim of the mesh lies below the plane.
     InputError
-        If the normal is zero or not finite.
+        If the normal is zero or not finite, or the backend is unknown.
     """
     n = unit_normal(normal)
     p_hull = np.asarray(point, dtype=np.float64)
     p = p_hull - prep.origin
     d = float(n @ p)
     check_rim(prep, n, d)
-    cl = clip(prep, n, d, cull=cull)
     u, v = plane_axes(n)
     o = d * n  # foot of the centred origin on the plane
-    a_in, ac_in, g = _cap(cl.seg, o, u, v)
-    vol = cl.det / 6.0 + a_in * d / 3.0
-    mom = cl.mom / 24.0 + d * ac_in / 4.0
-    wseg = cl.seg
-    if len(cl.flat):  # faces lying in the plane complete the closed waterplane
-        wseg = np.concatenate([cl.seg, cl.flat])
-        g = waterplane_moments(wseg, o, u, v)
+    if _backend(backend) == "compiled":
+        r = kernel_compiled.sweep(prep, n, d, o, u, v, cull=cull, segments=segments)
+        sums, green, ext, nseg = r.sums, r.green, r.extent, r.n_segments
+        flat = kernel_compiled.flat_segments(prep, r.flat_slots, n, d)
+        wseg = r.segments
+        if len(flat):
+            ext = _merge_extents(ext, _extent_rows(flat, o, u, v))
+            wseg = np.concatenate([wseg, flat]) if segments else None
+    else:
+        sums, green, wseg, flat = _pass_numpy(prep, n, d, o, u, v, cull)
+        ext, nseg = _extent_rows(wseg, o, u, v), len(wseg) - len(flat)
+        wseg = wseg if segments else None
+    return _finish(prep, p_hull, n, d, u, v, o, sums, green, flat, ext, nseg + len(flat), wseg)
+
+
+def _merge_extents(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    return np.array([min(a[0], b[0]), max(a[1], b[1]), min(a[2], b[2]), max(a[3], b[3]),
+                     min(a[4], b[4]), max(a[5], b[5])])
+
+
+def _finish(prep: Prepared, p_hull: np.ndarray, n: np.ndarray, d: float, u: np.ndarray, v: np.ndarray,
+            o: np.ndarray, sums: np.ndarray, green: np.ndarray, flat: np.ndarray, ext: np.ndarray,
+            nseg: int, wseg: np.ndarray | None) -> Cut:
+    """Volume and centroid with the cap cone, waterplane properties, extents: a :class:`Cut`."""
+    a_in = float(green[0])
+    vol = float(sums[0]) / 6.0 + a_in * d / 3.0
+    mom = sums[1:4] / 24.0 + d * (a_in * o + green[1] * u + green[2] * v) / 4.0
+    g = green
+    if len(flat):  # faces lying in the plane complete the closed waterplane
+        g = green + np.array(waterplane_moments(flat, o, u, v))
         if abs(g[0]) <= 1e-13 * max(prep.size, 1e-300) ** 2:
-            g = (0.0,) * 6
-    a, su, sv, suu, svv, suv = g
+            g = np.zeros(6)
+    a, su, sv, suu, svv, suv = (float(x) for x in g)
     if a > 0.0:
         cu, cv = su / a, sv / a
         c_wp = o + cu * u + cv * v + prep.origin
         i_l, i_t, i_uv = suu - a * cu * cu, svv - a * cv * cv, suv - a * cu * cv
     else:
         a, c_wp, i_l, i_t, i_uv = 0.0, p_hull.copy(), 0.0, 0.0, 0.0
-    lwl, bwl, wx = _extents(wseg, o, u, v, prep.origin, p_hull)
+    if nseg:
+        lwl, bwl = float(ext[1] - ext[0]), float(ext[3] - ext[2])
+        wx = np.array([ext[4], ext[5]]) + prep.origin[0]
+    else:
+        lwl, bwl, wx = 0.0, 0.0, np.array([p_hull[0], p_hull[0]])
     tol = 1e-12 * max(prep.size, 1.0) ** 3
     if vol > tol:
         centroid = mom / vol + prep.origin
@@ -245,23 +321,11 @@ def cut(
         centroid = p_hull.copy()
     return Cut(
         point=p_hull.copy(), normal=n, volume=float(vol), centroid=centroid,
-        wetted_area=float(cl.area), waterplane_area=float(a), waterplane_centroid=c_wp,
+        wetted_area=float(sums[4]), waterplane_area=float(a), waterplane_centroid=c_wp,
         axis_u=u, axis_v=v, inertia_t=float(i_t), inertia_l=float(i_l), inertia_uv=float(i_uv),
-        waterline_length=lwl, waterline_breadth=bwl, waterline_x=wx, n_segments=int(len(wseg)),
-        segments=(wseg + prep.origin) if segments else None,
+        waterline_length=lwl, waterline_breadth=bwl, waterline_x=wx, n_segments=int(nseg),
+        segments=(wseg + prep.origin) if wseg is not None else None,
     )
-
-
-def _extents(seg: np.ndarray, o: np.ndarray, u: np.ndarray, v: np.ndarray, origin: np.ndarray,
-             p_hull: np.ndarray) -> tuple[float, float, np.ndarray]:
-    """Waterline length and breadth [m] along u, v and the hull-frame x range (2,) of segments."""
-    if len(seg) == 0:
-        return 0.0, 0.0, np.array([p_hull[0], p_hull[0]])
-    pts = seg.reshape(-1, 3)
-    pu = (pts - o) @ u
-    pv = (pts - o) @ v
-    wx = np.array([pts[:, 0].min(), pts[:, 0].max()]) + origin[0]
-    return float(pu.max() - pu.min()), float(pv.max() - pv.min()), wx
 
 
 def total_volume(prep: Prepared) -> tuple[float, np.ndarray]:

@@ -22,6 +22,7 @@ a result (``cull=False`` opens every block, for tests).
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -165,13 +166,14 @@ def clip(prep: Prepared, n: np.ndarray, d: float, *, cull: bool = True) -> Clip:
 
 def plane_axes(n: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """In-plane axes (u along projected hull x, v = n x u) for a unit normal n."""
-    u = np.array([1.0, 0.0, 0.0]) - n[0] * n
-    nu = np.linalg.norm(u)
+    n0, n1, n2 = float(n[0]), float(n[1]), float(n[2])
+    u0, u1, u2 = 1.0 - n0 * n0, -n0 * n1, -n0 * n2
+    nu = math.sqrt(u0 * u0 + u1 * u1 + u2 * u2)
     if nu < 1e-9:  # plane perpendicular to x: fall back to projected y
-        u = np.array([0.0, 1.0, 0.0]) - n[1] * n
-        nu = np.linalg.norm(u)
-    u = u / nu
-    return u, np.cross(n, u)
+        u0, u1, u2 = -n1 * n0, 1.0 - n1 * n1, -n1 * n2
+        nu = math.sqrt(u0 * u0 + u1 * u1 + u2 * u2)
+    u0, u1, u2 = u0 / nu, u1 / nu, u2 / nu
+    return np.array([u0, u1, u2]), np.array([n1 * u2 - n2 * u1, n2 * u0 - n0 * u2, n0 * u1 - n1 * u0])
 
 
 def _edges_of(tri: np.ndarray) -> np.ndarray:

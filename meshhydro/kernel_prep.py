@@ -11,6 +11,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from . import kernel_build
 from .mesh_topology import degenerate_faces
 
 LEAF_SIZE = 16
@@ -122,6 +123,19 @@ def _block_data(tri_s: np.ndarray, m: int, nl: int, L: int) -> np.ndarray:
     return np.concatenate([tri_s.reshape(-1, 9), det[:, None], mom, area[:, None]], axis=1).reshape(nl, L, 14)
 
 
+def _build_numpy(vc: np.ndarray, f: np.ndarray, L: int, nl: int) -> tuple[np.ndarray, ...]:
+    """Morton order (m,), slot table (nl, L, 14), leaf bounds and sums, with numpy."""
+    m = len(f)
+    tri = vc[f]  # (m, 3, 3)
+    order = np.argsort(_morton(tri.mean(axis=1)), kind="stable") if m else np.zeros(0, np.int64)
+    tri_s = np.empty((nl * L, 3, 3))
+    tri_s[:m] = tri[order]
+    tri_s[m:] = tri_s[m - 1, 0] if m else 0.0  # padding: a real vertex three times
+    data = _block_data(tri_s, m, nl, L)
+    corners = tri_s.reshape(nl, L * 3, 3)
+    return order, data, corners.min(axis=1), corners.max(axis=1), data[:, :, 9:14].sum(axis=1)
+
+
 def prepare(
     vertices: np.ndarray,
     faces: np.ndarray,
@@ -129,6 +143,7 @@ def prepare(
     rim_vertices: np.ndarray | None = None,
     leaf_size: int = LEAF_SIZE,
     group_size: int = GROUP_SIZE,
+    compiled: bool = True,
 ) -> Prepared:
     """Precompute the per-face and per-block products of a mesh.
 
@@ -144,32 +159,31 @@ def prepare(
         water raises :class:`~meshhydro.errors.OpenRimError`.
     leaf_size, group_size : int
         Faces per leaf block and leaves per group.
+    compiled : bool
+        Build the tables with the compiled pass when numba is there (same tables).
     """
     v = np.asarray(vertices, dtype=np.float64)
     f_all = np.asarray(faces, dtype=np.int64).reshape(-1, 3)
     keep = ~degenerate_faces(f_all) if len(f_all) else np.zeros(0, bool)
     kept = np.flatnonzero(keep)
-    f = f_all[kept]
-    used = v[f.ravel()] if len(f) else v
-    lo, hi = used.min(axis=0), used.max(axis=0)
+    f = f_all[kept] if len(kept) < len(f_all) else f_all
+    used = np.zeros(len(v), dtype=bool)
+    used[f.ravel()] = True
+    lo, hi = (v[used].min(axis=0), v[used].max(axis=0)) if len(f) else (np.zeros(3), np.zeros(3))
     origin = 0.5 * (lo + hi)
     vc = v - origin
-    tri = vc[f]  # (m, 3, 3)
     m = len(f)
-    order = np.argsort(_morton(tri.mean(axis=1)), kind="stable") if m else np.zeros(0, np.int64)
     L, G = int(leaf_size), int(group_size)
     nl = max(1, -(-m // L))
     nl = -(-nl // G) * G  # whole groups
     ng = nl // G
-    tri_s = np.empty((nl * L, 3, 3))
-    tri_s[:m] = tri[order]
-    tri_s[m:] = tri_s[m - 1, 0] if m else 0.0  # padding: a real vertex three times
+    if compiled and kernel_build.AVAILABLE and m:
+        order = np.argsort(kernel_build.morton_keys(vc, f), kind="stable")
+        data, llo, lhi, lsum = kernel_build.build_leaves(vc, f, order, L, nl)
+    else:
+        order, data, llo, lhi, lsum = _build_numpy(vc, f, L, nl)
     idx = -np.ones(nl * L, dtype=np.int64)
     idx[:m] = kept[order]
-    data = _block_data(tri_s, m, nl, L)
-    corners = tri_s.reshape(nl, L * 3, 3)
-    llo, lhi = corners.min(axis=1), corners.max(axis=1)
-    lsum = data[:, :, 9:14].sum(axis=1)
     glo = llo.reshape(ng, G, 3).min(axis=1)
     ghi = lhi.reshape(ng, G, 3).max(axis=1)
     gsum = lsum.reshape(ng, G, 5).sum(axis=1)
@@ -192,6 +206,6 @@ def prepare(
         group_size=G,
         rim=rim,
         size=float(np.max(hi - lo)) if m else 0.0,
-        coord_bound=float(np.abs(tri_s.reshape(-1, 3)).max(axis=0).sum()),
+        coord_bound=float(np.maximum(np.abs(llo), np.abs(lhi)).max(axis=0).sum()),
         n_dropped=int(len(f_all) - m),
     )
