@@ -17,8 +17,9 @@ import numpy as np
 
 from .errors import InputError, InvalidMeshError
 from .frames import axis_matrix, unit_scale
-from .mesh_topology import (EdgeTable, EdgeUse, bodies_by_edges, degenerate_faces, duplicate_faces, edge_table,
-                            edge_use, rim_chains)
+from .mesh_stl import Progress, binary_stl_count, read_binary_stl, weld
+from .mesh_topology import (EdgeTable, EdgeUse, bodies_by_edges, body_sums, degenerate_faces, duplicate_faces,
+                            edge_table, edge_use, rim_chains)
 
 #: A hull larger than this in its longest extent [m] is taken as a unit mistake.
 MAX_PLAUSIBLE_LENGTH = 1000.0
@@ -143,10 +144,6 @@ def _read_trimesh(source: Any) -> tuple[np.ndarray, np.ndarray, str]:
     if isinstance(source, trimesh.Trimesh):
         return np.asarray(source.vertices, float), np.asarray(source.faces, np.int64), "<trimesh>"
     path = os.fspath(source)
-    if not os.path.exists(path):
-        raise InputError(f"{path}: no such file")
-    if os.path.isdir(path):
-        raise InputError(f"{path}: is a folder, not a mesh file")
     try:
         loaded = trimesh.load(path, process=False, force="mesh")
     except Exception as exc:  # trimesh raises many kinds; all mean "not a mesh we can read"
@@ -159,6 +156,42 @@ def _read_trimesh(source: Any) -> tuple[np.ndarray, np.ndarray, str]:
     return v, f, path
 
 
+def _read_welded(source: Any, progress: Progress | None) -> tuple[np.ndarray, np.ndarray, str, int]:
+    """Vertices, faces, source name and the number of corners welded away."""
+    fast = None
+    if not hasattr(source, "vertices"):
+        path = os.fspath(source)
+        if not os.path.exists(path):
+            raise InputError(f"{path}: no such file")
+        if os.path.isdir(path):
+            raise InputError(f"{path}: is a folder, not a mesh file")
+        if path.lower().endswith(".stl"):
+            fast = binary_stl_count(path)
+    if fast is not None:
+        if fast == 0:
+            raise InvalidMeshError(f"{path}: the mesh is empty (no faces)")
+        corners = read_binary_stl(path, fast, progress)
+        v, f = weld(corners, path)
+        return v.astype(np.float64), f, path, 3 * fast - len(v)
+    v, f, src = _read_trimesh(source)
+    if len(f) == 0 or len(v) == 0:
+        raise InvalidMeshError(f"{src}: the mesh is empty (no faces)")
+    if f.ndim != 2 or f.shape[1] != 3:
+        raise InvalidMeshError(f"{src}: faces are not triangles (shape {f.shape})")
+    if f.min() < 0 or f.max() >= len(v):
+        k = int(np.flatnonzero((f < 0).any(axis=1) | (f >= len(v)).any(axis=1))[0])
+        raise InvalidMeshError(f"{src}: face {k} refers to a vertex that does not exist")
+    bad = ~np.all(np.isfinite(v), axis=1)
+    if bad.any():
+        k = int(np.flatnonzero(bad)[0])
+        raise InvalidMeshError(
+            f"{src}: vertex {k} has a non-finite coordinate {v[k].tolist()} "
+            f"({int(bad.sum())} such vertices)"
+        )
+    vw, fw = weld(v[f], src)
+    return vw, fw, src, len(v) - len(vw)
+
+
 def read_mesh(
     source: Any,
     *,
@@ -166,8 +199,13 @@ def read_mesh(
     forward: str = "+x",
     up: str = "+z",
     offset: tuple[float, float, float] | np.ndarray = (0.0, 0.0, 0.0),
+    progress: Progress | None = None,
 ) -> MeshData:
     """Read a mesh file (STL/OBJ/PLY/OFF/GLB) or a ``trimesh.Trimesh`` into the hull frame.
+
+    Binary STL is read directly (numpy, in chunks); other formats through trimesh with
+    ``process=False``. Corners with bit-identical coordinates are welded into one vertex
+    (vertices no face uses are dropped); nothing else is changed.
 
     Parameters
     ----------
@@ -180,6 +218,8 @@ def read_mesh(
     offset : (3,) [m]
         Added to the hull-frame coordinates after scaling and rotation (for example
         to put the baseline at z = 0).
+    progress : callable(stage, done, total), optional
+        Called as the work advances (stage "read" for a binary STL).
 
     Raises
     ------
@@ -191,27 +231,14 @@ def read_mesh(
     off = np.asarray(offset, dtype=float).reshape(-1)
     if off.shape != (3,) or not np.all(np.isfinite(off)):
         raise InputError(f"offset must be three finite numbers, got {offset!r}")
-    v, f, src = _read_trimesh(source)
-    if len(f) == 0 or len(v) == 0:
-        raise InvalidMeshError(f"{src}: the mesh is empty (no faces)")
-    if f.ndim != 2 or f.shape[1] != 3:
-        raise InvalidMeshError(f"{src}: faces are not triangles (shape {f.shape})")
-    bad = ~np.all(np.isfinite(v), axis=1)
-    if bad.any():
-        k = int(np.flatnonzero(bad)[0])
-        raise InvalidMeshError(
-            f"{src}: vertex {k} has a non-finite coordinate {v[k].tolist()} "
-            f"({int(bad.sum())} such vertices)"
-        )
-    if f.min() < 0 or f.max() >= len(v):
-        k = int(np.flatnonzero((f < 0).any(axis=1) | (f >= len(v)).any(axis=1))[0])
-        raise InvalidMeshError(f"{src}: face {k} refers to a vertex that does not exist")
-    # weld bit-identical vertices (STL stores each triangle separately)
-    uniq, inv = np.unique(v, axis=0, return_inverse=True)
-    welded = len(v) - len(uniq)
-    f = inv.reshape(-1)[f]
-    vh = (uniq * scale) @ rot.T + off
-    return MeshData(vertices=vh, faces=f, source=src, units=units, welded=int(welded))
+    v, f, src, welded = _read_welded(source, progress)
+    if scale != 1.0:
+        v *= scale
+    if not np.array_equal(rot, np.eye(3)):
+        v = v @ rot.T
+    if np.any(off):
+        v += off
+    return MeshData(vertices=v, faces=f, source=src, units=units, welded=int(welded))
 
 
 # --------------------------------------------------------------------------- topology
@@ -241,7 +268,7 @@ class _Topology:
 def _topology(faces: np.ndarray, n_vertices: int) -> _Topology:
     deg = degenerate_faces(faces)
     kept = np.flatnonzero(~deg)
-    fk = faces[kept]
+    fk = faces[kept] if len(kept) < len(faces) else faces
     et = edge_table(fk, n_vertices)
     lab_k = bodies_by_edges(len(fk), et)
     labels = np.full(len(faces), -1, dtype=np.int64)
@@ -255,16 +282,6 @@ def body_labels(md: MeshData) -> np.ndarray:
     return _topology(md.faces, len(md.vertices)).labels
 
 
-def _signed_volumes(v: np.ndarray, f: np.ndarray, labels: np.ndarray, nb: int) -> np.ndarray:
-    """Signed enclosed volume [m³] (nb,) of each labelled body (divergence theorem)."""
-    sel = labels >= 0
-    c = 0.5 * (v.min(axis=0) + v.max(axis=0))
-    fs = f[sel]
-    a, b, cc = v[fs[:, 0]] - c, v[fs[:, 1]] - c, v[fs[:, 2]] - c
-    det = np.einsum("ij,ij->i", a, np.cross(b, cc))
-    return np.bincount(labels[sel], weights=det, minlength=nb) / 6.0
-
-
 def _bodies(v: np.ndarray, f: np.ndarray, topo: _Topology) -> list[Body]:
     """Per-body face count, closure, volume and bounds."""
     lab = topo.labels
@@ -272,18 +289,11 @@ def _bodies(v: np.ndarray, f: np.ndarray, topo: _Topology) -> list[Body]:
     bad = topo.use.boundary | topo.use.unbalanced
     open_b = np.zeros(nb, bool)
     open_b[topo.use.body[bad]] = True
-    vols = _signed_volumes(v, f, lab, nb)
-    order = np.argsort(lab, kind="stable")
-    order = order[lab[order] >= 0]
-    corners = v[f[order]]
-    starts = np.flatnonzero(np.r_[True, np.diff(lab[order]) != 0])
-    lo = np.minimum.reduceat(corners.min(axis=1), starts, axis=0)
-    hi = np.maximum.reduceat(corners.max(axis=1), starts, axis=0)
-    counts = np.bincount(lab[order], minlength=nb)
+    vols, lo, hi, counts, first = body_sums(v, f, lab, nb)
     return [
         Body(index=b, n_faces=int(counts[b]), closed=bool(not open_b[b]),
              volume=None if open_b[b] else float(vols[b]),
-             bounds=(lo[b].tolist(), hi[b].tolist()), first_face=int(order[starts[b]]))
+             bounds=(lo[b].tolist(), hi[b].tolist()), first_face=int(first[b]))
         for b in range(nb)
     ]
 
@@ -427,18 +437,26 @@ def _scale_findings(src: str, size: float, units: str) -> tuple[list[str], list[
     return [], []
 
 
-def inspect(md: MeshData) -> HealthReport:
-    """Build the health report of a mesh already in the hull frame."""
+def inspect(md: MeshData, *, progress: Progress | None = None) -> HealthReport:
+    """Build the health report of a mesh already in the hull frame.
+
+    ``progress("check", done, 3)`` is called after each of the three steps (topology,
+    bodies, rims and overlaps).
+    """
     v, f = md.vertices, md.faces
     src = md.source
+    step = progress or (lambda *a: None)
     topo = _topology(f, len(v))
-    fk = f[topo.kept] if len(topo.kept) else f
-    corners = v[fk.ravel()]
-    lo, hi = corners.min(axis=0), corners.max(axis=0)
+    step("check", 1, 3)
+    used = np.zeros(len(v), dtype=bool)
+    used[(f[topo.kept] if len(topo.kept) else f).ravel()] = True
+    lo, hi = v[used].min(axis=0), v[used].max(axis=0)
     size = float(np.max(hi - lo))
     bodies = _bodies(v, f, topo)
+    step("check", 2, 3)
     rims = _rims(v, topo)
     overlaps, checked = _overlaps(v, f, topo.labels, bodies)
+    step("check", 3, 3)
     problems, warnings, n_unbal = _topology_findings(src, v, topo)
     for p, w in (_body_findings(src, bodies, overlaps, checked), _face_findings(src, md, topo, rims),
                  _scale_findings(src, size, md.units)):
@@ -502,8 +520,12 @@ def check_mesh(
     offset: tuple[float, float, float] = (0.0, 0.0, 0.0),
     flip_inside_out: bool = False,
     merge_overlaps: bool = False,
+    progress: Progress | None = None,
 ) -> tuple[MeshData, HealthReport]:
     """Read a mesh, apply only the repairs asked for, and report on it.
+
+    ``progress(stage, done, total)`` is called as the work advances (see :func:`read_mesh`;
+    stage "check" counts the steps of the health check).
 
     Returns
     -------
@@ -512,8 +534,8 @@ def check_mesh(
     report : HealthReport
         The report on that mesh; repairs made are listed in it.
     """
-    md = read_mesh(source, units=units, forward=forward, up=up, offset=offset)
-    rep = inspect(md)
+    md = read_mesh(source, units=units, forward=forward, up=up, offset=offset, progress=progress)
+    rep = inspect(md, progress=progress)
     flipped: list[int] = []
     merged = False
     if flip_inside_out and rep.inside_out_bodies:

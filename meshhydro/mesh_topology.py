@@ -8,8 +8,11 @@ Faces with a repeated vertex index are left out by the caller.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
+
+from . import mesh_compiled
 
 
 @dataclass(frozen=True, eq=False)
@@ -27,6 +30,8 @@ class EdgeTable:
     edge_of : (3m,) int64
         Edge id of each half-edge; half-edge ``3i + k`` runs from corner k to corner
         k + 1 of face i.
+    second_face : (e,) int64
+        For an edge used by exactly two faces, the other one (-1 for an edge used once).
     fwd : (3m,) bool
         Whether the half-edge runs lo -> hi.
     """
@@ -36,8 +41,19 @@ class EdgeTable:
     n_fwd: np.ndarray
     n_tot: np.ndarray
     first_face: np.ndarray
+    second_face: np.ndarray
     edge_of: np.ndarray
     fwd: np.ndarray
+
+    @cached_property
+    def pairs(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Edges used by exactly two faces (k,) and those two faces (k,), (k,) (computed once)."""
+        return self.face_pairs()
+
+    def face_pairs(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Edges used by exactly two faces (k,) and those two faces (k,), (k,)."""
+        e2 = np.flatnonzero(self.n_tot == 2)
+        return e2, self.first_face[e2], self.second_face[e2]
 
 
 def degenerate_faces(faces: np.ndarray) -> np.ndarray:
@@ -46,53 +62,71 @@ def degenerate_faces(faces: np.ndarray) -> np.ndarray:
     return (f[:, 0] == f[:, 1]) | (f[:, 1] == f[:, 2]) | (f[:, 0] == f[:, 2])
 
 
-def edge_table(faces: np.ndarray, n_vertices: int | None = None) -> EdgeTable:
-    """The edge table of ``faces`` (m, 3) int (no repeated index within a face)."""
+def edge_table(faces: np.ndarray, n_vertices: int | None = None, *, compiled: bool = True) -> EdgeTable:
+    """The edge table of ``faces`` (m, 3) int (no repeated index within a face).
+
+    With ``compiled`` (and numba) one hash-table pass; otherwise one sort of the
+    half-edges. Both give the same table up to the numbering of the edges.
+    """
     f = np.asarray(faces, dtype=np.int64)
+    nv = int(n_vertices if n_vertices is not None else (f.max() + 1 if len(f) else 0))
+    if compiled and mesh_compiled.AVAILABLE and len(f):
+        lo, hi, n_fwd, n_tot, ff, sf, edge_of, fwd = mesh_compiled.edge_buckets(f, nv)
+        sf[n_tot != 2] = -1
+        return EdgeTable(lo, hi, n_fwd, n_tot, ff, sf, edge_of, fwd)
     a = f.reshape(-1)
     b = np.roll(f, -1, axis=1).reshape(-1)
-    lo = np.minimum(a, b)
-    hi = np.maximum(a, b)
-    nv = int(n_vertices if n_vertices is not None else (f.max() + 1 if len(f) else 0))
-    key = lo * max(nv, 1) + hi
-    order = np.argsort(key, kind="stable")
-    ks = key[order]
-    start = np.ones(len(ks), dtype=bool)
-    start[1:] = ks[1:] != ks[:-1]
-    gid = np.cumsum(start) - 1
-    edge_of = np.empty(len(key), dtype=np.int64)
-    edge_of[order] = gid
-    first = np.flatnonzero(start)
     fwd = a < b
-    ne = len(first)
+    key = np.where(fwd, a, b) * max(nv, 1) + np.where(fwd, b, a)
+    del a, b
+    order = np.argsort(key)
+    ks = key[order]
+    del key
+    new = np.empty(len(ks), dtype=bool)
+    new[:1] = True
+    np.not_equal(ks[1:], ks[:-1], out=new[1:])
+    start = np.flatnonzero(new)
+    edge_of = np.empty(len(ks), dtype=np.int64)
+    edge_of[order] = np.cumsum(new) - 1
+    head = ks[start]
+    del ks, new
+    n_tot = np.diff(np.append(start, len(order))).astype(np.int64)
+    first = np.minimum.reduceat(order // 3, start) if len(start) else np.zeros(0, np.int64)
+    two = n_tot == 2
+    second = np.full(len(start), -1, dtype=np.int64)
+    second[two] = order[start[two]] // 3 + order[start[two] + 1] // 3 - first[two]
     return EdgeTable(
-        lo=lo[order[first]],
-        hi=hi[order[first]],
-        n_fwd=np.bincount(edge_of, weights=fwd, minlength=ne).astype(np.int64),
-        n_tot=np.diff(np.append(first, len(ks))).astype(np.int64),
-        first_face=order[first] // 3,
+        lo=head // max(nv, 1),
+        hi=head % max(nv, 1),
+        n_fwd=np.add.reduceat(fwd[order].astype(np.int64), start) if len(start) else np.zeros(0, np.int64),
+        n_tot=n_tot,
+        first_face=first,
+        second_face=second,
         edge_of=edge_of,
         fwd=fwd,
     )
 
 
-def bodies_by_edges(n_faces: int, et: EdgeTable) -> np.ndarray:
+def bodies_by_edges(n_faces: int, et: EdgeTable, *, compiled: bool = True) -> np.ndarray:
     """Body label (m,) of each face: components through edges used by exactly two faces.
 
-    Labels are numbered in order of each body's lowest face index.
+    Labels are numbered in order of each body's lowest face index (union-find when
+    compiled, else scipy's connected components).
     """
     from scipy.sparse import coo_matrix
     from scipy.sparse.csgraph import connected_components
 
-    two = np.flatnonzero(et.n_tot[et.edge_of] == 2)  # half-edges on manifold edges
-    order = two[np.argsort(et.edge_of[two], kind="stable")]
-    fa, fb = order[0::2] // 3, order[1::2] // 3
-    g = coo_matrix((np.ones(len(fa), np.int8), (fa, fb)), shape=(n_faces, n_faces))
-    _, lab = connected_components(g, directed=False)
-    first = np.full(lab.max() + 1 if len(lab) else 0, n_faces, dtype=np.int64)
+    _, fa, fb = et.pairs
+    if compiled and mesh_compiled.AVAILABLE:
+        return mesh_compiled.components(n_faces, fa, fb)
+    g = coo_matrix((np.ones(len(fa), np.int8), (fa, fb)), shape=(n_faces, n_faces)).tocsr()
+    nb, lab = connected_components(g, directed=False)
+    if nb == 1:
+        return np.zeros(n_faces, dtype=np.int64)
+    first = np.full(nb, n_faces, dtype=np.int64)
     np.minimum.at(first, lab, np.arange(n_faces))
     rank = np.empty_like(first)
-    rank[np.argsort(first, kind="stable")] = np.arange(len(first))
+    rank[np.argsort(first, kind="stable")] = np.arange(nb)
     return rank[lab]
 
 
@@ -129,8 +163,9 @@ def edge_use(et: EdgeTable, labels: np.ndarray) -> EdgeUse:
     two = et.n_tot == 2
     e2 = np.flatnonzero(two)
     # each manifold edge lies within one body: the body of its first face
-    b2 = labels[et.first_face[e2]]
-    other = np.flatnonzero(~two[et.edge_of])  # half-edges on boundary or non-manifold edges
+    b2 = labels[et.first_face[e2]] if labels.max(initial=0) > 0 else np.zeros(len(e2), np.int64)
+    # half-edges on boundary or non-manifold edges (none in a closed manifold mesh)
+    other = np.flatnonzero(~two[et.edge_of]) if len(e2) < len(two) else np.zeros(0, np.int64)
     nb = int(labels.max()) + 1 if len(labels) else 1
     key = et.edge_of[other] * nb + labels[other // 3]
     uk, inv = np.unique(key, return_inverse=True)
@@ -147,17 +182,17 @@ def edge_use(et: EdgeTable, labels: np.ndarray) -> EdgeUse:
 def duplicate_faces(faces: np.ndarray, et: EdgeTable) -> np.ndarray:
     """Indices (sorted) of faces that repeat an earlier face's three vertices (either winding)."""
     f = np.asarray(faces, dtype=np.int64)
-    found = []
-    # two faces on one manifold edge are the same face when their third vertices agree
-    two = np.flatnonzero(et.n_tot[et.edge_of] == 2)
-    order = two[np.argsort(et.edge_of[two], kind="stable")]
-    ha, hb = order[0::2], order[1::2]
-    fa, fb = ha // 3, hb // 3
-    ends = et.lo[et.edge_of[ha]] + et.hi[et.edge_of[ha]]
-    same = f[fa].sum(axis=1) - ends == f[fb].sum(axis=1) - ends
-    found.append(np.maximum(fa, fb)[same & (fa != fb)])
+    # two faces on one edge are the same face when their third vertices agree, that is
+    # when their vertex-index sums agree
+    _, fa, fb = et.pairs
+    if mesh_compiled.AVAILABLE:
+        same = mesh_compiled.same_third_vertex(f, fa, fb)
+    else:
+        fsum = f.sum(axis=1)
+        same = fsum[fa] == fsum[fb]
+    found = [np.maximum(fa, fb)[same]]
     # faces on edges used three or more times: compare their sorted vertex triples
-    many = np.flatnonzero(et.n_tot[et.edge_of] > 2) // 3
+    many = np.flatnonzero(et.n_tot[et.edge_of] > 2) // 3 if np.any(et.n_tot > 2) else np.zeros(0, np.int64)
     if len(many):
         cand = np.unique(many)
         srt = np.sort(f[cand], axis=1)
@@ -165,7 +200,7 @@ def duplicate_faces(faces: np.ndarray, et: EdgeTable) -> np.ndarray:
         mask = np.ones(len(cand), bool)
         mask[first] = False
         found.append(cand[mask])
-    return np.unique(np.concatenate(found)) if found else np.zeros(0, np.int64)
+    return np.unique(np.concatenate(found))
 
 
 def rim_chains(et: EdgeTable, use: EdgeUse, n_vertices: int) -> list[tuple[np.ndarray, int, int]]:
@@ -188,3 +223,49 @@ def rim_chains(et: EdgeTable, use: EdgeUse, n_vertices: int) -> list[tuple[np.nd
         verts = np.unique(np.concatenate([bl[grp], bh[grp]]))
         out.append((verts, len(grp), int(et.first_face[be[grp]].min())))
     return out
+
+
+def body_sums(v: np.ndarray, f: np.ndarray, lab: np.ndarray, nb: int, *, compiled: bool = True) -> tuple[
+    np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray
+]:
+    """Per body (labels ``lab`` (m,), -1 skipped): signed volume [m³] (nb,) about the middle
+    of the bounding box, least and greatest coordinates (nb, 3), face count and first face (nb,)."""
+    centre = 0.5 * (v.min(axis=0) + v.max(axis=0))
+    if compiled and mesh_compiled.AVAILABLE:
+        det6, lo, hi, counts, first = mesh_compiled.body_sums(v, f, lab, nb, centre)
+        return det6 / 6.0, lo, hi, counts, first
+    lo, hi, first = _body_bounds(v, f, lab, nb)
+    return _signed_volumes(v, f, lab, nb), lo, hi, np.bincount(lab[lab >= 0], minlength=nb), first
+
+
+def _signed_volumes(v: np.ndarray, f: np.ndarray, labels: np.ndarray, nb: int) -> np.ndarray:
+    """Signed enclosed volume [m³] (nb,) of each labelled body (divergence theorem), about
+    the middle of the bounding box; in chunks to bound the temporary memory."""
+    c = 0.5 * (v.min(axis=0) + v.max(axis=0))
+    vc = v - c
+    out = np.zeros(nb)
+    step = 1 << 20
+    for i in range(0, len(f), step):
+        fs, lab = f[i:i + step], labels[i:i + step]
+        a, b, cc = vc[fs[:, 0]], vc[fs[:, 1]], vc[fs[:, 2]]
+        det = (a[:, 0] * (b[:, 1] * cc[:, 2] - b[:, 2] * cc[:, 1]) + a[:, 1] * (b[:, 2] * cc[:, 0] - b[:, 0] * cc[:, 2])
+               + a[:, 2] * (b[:, 0] * cc[:, 1] - b[:, 1] * cc[:, 0]))
+        ok = lab >= 0
+        out += np.bincount(lab[ok], weights=det[ok], minlength=nb)
+    return out / 6.0
+
+
+def _body_bounds(v: np.ndarray, f: np.ndarray, lab: np.ndarray, nb: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Per body: least and greatest coordinates (nb, 3) and the first face (nb,)."""
+    if nb == 1:
+        sel = lab == 0
+        used = np.zeros(len(v), bool)
+        used[f[sel].ravel()] = True
+        return v[used].min(axis=0)[None], v[used].max(axis=0)[None], np.flatnonzero(sel)[:1]
+    order = np.argsort(lab, kind="stable")
+    order = order[lab[order] >= 0]
+    corners = v[f[order]]
+    starts = np.flatnonzero(np.r_[True, np.diff(lab[order]) != 0])
+    lo = np.minimum.reduceat(corners.min(axis=1), starts, axis=0)
+    hi = np.maximum.reduceat(corners.max(axis=1), starts, axis=0)
+    return lo, hi, order[starts]
