@@ -272,7 +272,7 @@ def cut(
     if _backend(backend) == "compiled":
         r = kernel_compiled.sweep(prep, n, d, o, u, v, cull=cull, segments=segments)
         sums, green, ext, nseg = r.sums, r.green, r.extent, r.n_segments
-        flat = kernel_compiled.flat_segments(prep, r.flat_slots, n, d)
+        flat = kernel_compiled.flat_segments_at(prep, r.flat_slots, n, d)
         wseg = r.segments
         if len(flat):
             ext = _merge_extents(ext, _extent_rows(flat, o, u, v))

@@ -121,7 +121,7 @@ def clip_faces(rows: np.ndarray, fidx: np.ndarray, n: np.ndarray, d: float) -> C
         dd, dm, da, seg = _clip_mixed(tri[mixed], s[mixed], isb[mixed])
         det, mom, area = det + dd, mom + dm, area + da
     on = np.flatnonzero((s == 0.0).all(axis=1))
-    flat = _flat_segments(tri[on], n, d) if len(on) else np.zeros((0, 2, 3))
+    flat = flat_segments(tri[on], n, d) if len(on) else np.zeros((0, 2, 3))
     return Clip(det, mom, area, seg, fidx[mixed], flat)
 
 
@@ -181,7 +181,7 @@ def _edges_of(tri: np.ndarray) -> np.ndarray:
     return np.stack([tri, np.roll(tri, -1, axis=1)], axis=2).reshape(-1, 2, 3)
 
 
-def _flat_segments(tri: np.ndarray, n: np.ndarray, d: float) -> np.ndarray:
+def flat_segments(tri: np.ndarray, n: np.ndarray, d: float) -> np.ndarray:
     """Waterplane segments from faces lying in the plane: down-facing faces, reversed to
     run counter-clockwise about n, less their overlap with up-facing faces."""
     a, b, c = tri[:, 0], tri[:, 1], tri[:, 2]

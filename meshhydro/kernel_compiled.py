@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .kernel_clip import Clip, _flat_segments
+from .kernel_clip import Clip, flat_segments as clip_flat_segments
 from .kernel_prep import Prepared
 
 try:
@@ -232,12 +232,12 @@ def clip(prep: Prepared, n: np.ndarray, d: float, *, cull: bool = True) -> Clip:
     zero = np.zeros(3)
     r = sweep(prep, n, d, zero, zero, zero, cull=cull, segments=True)
     return Clip(float(r.sums[0]), r.sums[1:4].copy(), float(r.sums[4]), r.segments, r.seg_faces,
-                flat_segments(prep, r.flat_slots, n, d))
+                flat_segments_at(prep, r.flat_slots, n, d))
 
 
-def flat_segments(prep: Prepared, slots: np.ndarray, n: np.ndarray, d: float) -> np.ndarray:
+def flat_segments_at(prep: Prepared, slots: np.ndarray, n: np.ndarray, d: float) -> np.ndarray:
     """Waterplane segments (j, 2, 3) of the faces lying in the plane, from their slots."""
     if len(slots) == 0:
         return np.zeros((0, 2, 3))
     rows = prep.data.reshape(-1, 14)[slots]
-    return _flat_segments(rows[:, :9].reshape(-1, 3, 3), n, d)
+    return clip_flat_segments(rows[:, :9].reshape(-1, 3, 3), n, d)

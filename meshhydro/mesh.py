@@ -172,6 +172,8 @@ def _read_welded(source: Any, progress: Progress | None) -> tuple[np.ndarray, np
             raise InvalidMeshError(f"{path}: the mesh is empty (no faces)")
         corners = read_binary_stl(path, fast, progress)
         v, f = weld(corners, path)
+        if progress is not None:
+            progress("weld", 1, 1)
         return v.astype(np.float64), f, path, 3 * fast - len(v)
     v, f, src = _read_trimesh(source)
     if len(f) == 0 or len(v) == 0:
@@ -219,7 +221,7 @@ def read_mesh(
         Added to the hull-frame coordinates after scaling and rotation (for example
         to put the baseline at z = 0).
     progress : callable(stage, done, total), optional
-        Called as the work advances (stage "read" for a binary STL).
+        Called as the work advances (stages "read" and "weld" for a binary STL).
 
     Raises
     ------

@@ -60,10 +60,8 @@ def _degenerate(name: str, v: np.ndarray, f: np.ndarray, m: int, rng: np.random.
     if name == "axis":
         n = np.eye(3)[rng.integers(3, size=m)] * sign
         return v[rng.integers(len(v), size=m)], n
-    z = np.where(sign[:, 0] > 0, v[:, 2].min(), v[:, 2].max())  # extreme: bottom or top
-    p = np.tile(v.mean(axis=0), (m, 1))
+    p = np.tile(v.mean(axis=0), (m, 1))  # extreme: at the bottom or the top, either way up
     p[:, 2] = np.where(rng.random(m) < 0.5, v[:, 2].min(), v[:, 2].max())
-    del z
     return p, np.tile([0.0, 0.0, 1.0], (m, 1)) * sign
 
 
