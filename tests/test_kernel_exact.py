@@ -150,3 +150,22 @@ def test_extent_along_brackets_the_vertices():
         s = hull.vertices @ n
         assert lo <= s.min() <= lo + 1e-12 * hull.size
         assert hi - 1e-12 * hull.size <= s.max() <= hi
+
+
+@pytest.mark.parametrize("name", ["grid_box", "tern_sloop", "twinfin_cat", "torus"])
+def test_cut_segments_close_exactly_in_degenerate_planes(name):
+    # the waterline is a set of closed loops: every segment end is the start of another,
+    # bit for bit, for planes through vertices, along edges and coplanar with faces
+    from planes import plane_set, reference_meshes
+
+    hull = load_hull(tm(*reference_meshes(ROOT)[name][0]()))
+    rng = np.random.default_rng(3)
+    P, N, K = plane_set(hull.vertices, hull.faces, 120, rng, degenerate_share=1.0)
+    closed = 0
+    for p, n in zip(P, N, strict=True):
+        seg = hull.cut(p, n, segments=True).segments
+        keep = np.any(seg[:, 0] != seg[:, 1], axis=1)  # zero-length pieces at vertices on the plane
+        a, b = seg[keep, 0], seg[keep, 1]
+        assert np.array_equal(a[np.lexsort(a.T)], b[np.lexsort(b.T)]), (p, n)
+        closed += len(a) > 0
+    assert closed > 60
