@@ -134,7 +134,7 @@ class Hull:
         """
         p = vec3(point, "point")
         n = vec3(normal, "normal")
-        if np.linalg.norm(n) == 0:
+        if not np.any(n):  # kernel.cut scales before normalising
             raise InputError("normal must not be the zero vector")
         return kernel.cut(self._prep, p, n, segments=segments)
 

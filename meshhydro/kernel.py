@@ -12,73 +12,30 @@ faces and the waterplane cap. With the origin O of the (centred) mesh as apex,
 The cap's area, centroid and second moments come from the oriented cut segments by
 Green's theorem, so the cap is never triangulated. Faces wholly below the plane need
 no clipping; faces are sorted into spatially compact blocks (Morton order) with
-bounding boxes and block sums, so only blocks that straddle the plane are opened and
-the cost follows the waterline rather than the mesh.
-
-Classification: a vertex is *below* when its signed distance ``n . x - d`` is < 0 and
-*above* otherwise. The intersection point on an edge is always computed from its
-below end, so the two faces sharing an edge produce the identical point and the cut
-segments close exactly, also when the plane passes through vertices, edges or whole
-coplanar faces.
+bounding boxes and block sums (:mod:`meshhydro.kernel_prep`), so only blocks that may
+touch the plane are opened and the cost follows the waterline rather than the mesh.
+The exact rules for vertices, edges and faces lying in the plane, and the conservative
+block test, are in :mod:`meshhydro.kernel_clip` (the numpy reference pass); a compiled
+pass with the same rules sits beside it in :mod:`meshhydro.kernel_compiled`.
 """
 from __future__ import annotations
 
+import math
+import os
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from .errors import OpenRimError
+from . import kernel_compiled
+from .errors import InputError, OpenRimError
+from .kernel_clip import Clip, plane_axes
+from .kernel_clip import clip as clip_numpy
+from .kernel_prep import GROUP_SIZE, LEAF_SIZE, Prepared, prepare
 
-LEAF_SIZE = 16
-GROUP_SIZE = 16
-
-
-@dataclass(frozen=True, eq=False)
-class Prepared:
-    """Per-face and per-block products of a mesh, reused across planes.
-
-    Faces are sorted in Morton order of their centroids and grouped into leaves of
-    ``L`` faces; leaves are grouped into groups of ``G`` leaves. Both levels carry an
-    axis-aligned bounding box and the sums of their faces' products.
-
-    Attributes
-    ----------
-    origin : (3,) float64 [m], hull frame
-        The centring shift: internal coordinates are hull coordinates minus ``origin``.
-    vertices : (n, 3) float64 [m], centred
-    data : (nl, L, 14) float64
-        Per face slot: corners a, b, c (9 values, m, centred), ``det(a, b, c)`` [m³],
-        ``det(a, b, c) (a + b + c)`` (3 values, m⁴) and the area [m²]. Padding slots
-        are zero-area triangles with zero products.
-    face_index : (nl, L) int64
-        Index of each slot's face in the original face array (-1 for padding).
-    leaf_center, leaf_half : (nl, 3) float64 [m]
-        Bounding boxes of the leaves.
-    leaf_sums : (nl, 5) float64
-        Per leaf: sum of det, of det·(a+b+c) (3) and of area.
-    group_center, group_half, group_sums : (ng, 3), (ng, 3), (ng, 5)
-        The same for groups of ``G`` consecutive leaves.
-    group_size : int
-        Leaves per group.
-    rim : (r, 3) float64 [m], centred
-        Vertices on open boundaries (empty for a closed mesh).
-    size : float [m]
-        Largest bounding-box extent, for scaled tolerances.
-    """
-
-    origin: np.ndarray
-    vertices: np.ndarray
-    data: np.ndarray
-    face_index: np.ndarray
-    leaf_center: np.ndarray
-    leaf_half: np.ndarray
-    leaf_sums: np.ndarray
-    group_center: np.ndarray
-    group_half: np.ndarray
-    group_sums: np.ndarray
-    group_size: int
-    rim: np.ndarray
-    size: float
+__all__ = [
+    "Clip", "Cut", "GROUP_SIZE", "LEAF_SIZE", "Prepared", "check_rim", "clip", "cut", "extent_along",
+    "prepare", "section_area", "total_volume", "unit_normal", "waterplane_moments",
+]
 
 
 @dataclass(frozen=True, eq=False)
@@ -152,216 +109,6 @@ class Cut:
         )
 
 
-def _morton(points: np.ndarray) -> np.ndarray:
-    """Morton (Z-order) keys (m,) uint64 of points (m, 3) on a 2**10 grid."""
-    lo = points.min(axis=0)
-    span = np.maximum(points.max(axis=0) - lo, 1e-300)
-    q = np.clip(((points - lo) / span * 1023.0).astype(np.uint64), 0, 1023)
-
-    def spread(x: np.ndarray) -> np.ndarray:
-        x = x & np.uint64(0x3FF)
-        x = (x | (x << np.uint64(16))) & np.uint64(0x30000FF)
-        x = (x | (x << np.uint64(8))) & np.uint64(0x300F00F)
-        x = (x | (x << np.uint64(4))) & np.uint64(0x30C30C3)
-        x = (x | (x << np.uint64(2))) & np.uint64(0x9249249)
-        return x
-
-    return spread(q[:, 0]) | (spread(q[:, 1]) << np.uint64(1)) | (spread(q[:, 2]) << np.uint64(2))
-
-
-def _det_rows(a: np.ndarray, b: np.ndarray, c: np.ndarray) -> np.ndarray:
-    """Row-wise ``a . (b x c)`` for arrays (..., 3)."""
-    return (
-        a[..., 0] * (b[..., 1] * c[..., 2] - b[..., 2] * c[..., 1])
-        + a[..., 1] * (b[..., 2] * c[..., 0] - b[..., 0] * c[..., 2])
-        + a[..., 2] * (b[..., 0] * c[..., 1] - b[..., 1] * c[..., 0])
-    )
-
-
-def _area_rows(a: np.ndarray, b: np.ndarray, c: np.ndarray) -> np.ndarray:
-    """Row-wise triangle areas for corner arrays (..., 3)."""
-    e, f = b - a, c - a
-    x = e[..., 1] * f[..., 2] - e[..., 2] * f[..., 1]
-    y = e[..., 2] * f[..., 0] - e[..., 0] * f[..., 2]
-    z = e[..., 0] * f[..., 1] - e[..., 1] * f[..., 0]
-    return 0.5 * np.sqrt(x * x + y * y + z * z)
-
-
-def _boxes(lo: np.ndarray, hi: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    return 0.5 * (lo + hi), 0.5 * (hi - lo)
-
-
-def prepare(
-    vertices: np.ndarray,
-    faces: np.ndarray,
-    *,
-    rim_vertices: np.ndarray | None = None,
-    leaf_size: int = LEAF_SIZE,
-    group_size: int = GROUP_SIZE,
-) -> Prepared:
-    """Precompute the per-face and per-block products of a mesh.
-
-    Parameters
-    ----------
-    vertices : (n, 3) float64 [m], hull frame
-    faces : (m, 3) int
-        Outward-oriented triangles (counter-clockwise seen from outside).
-    rim_vertices : (r,) int, optional
-        Indices of vertices on open boundaries; a plane that puts any of them under
-        water raises :class:`OpenRimError`.
-    leaf_size, group_size : int
-        Faces per leaf block and leaves per group.
-    """
-    v = np.asarray(vertices, dtype=np.float64)
-    f = np.asarray(faces, dtype=np.int64)
-    lo, hi = v.min(axis=0), v.max(axis=0)
-    origin = 0.5 * (lo + hi)
-    vc = v - origin
-    tri = vc[f]  # (m, 3, 3)
-    order = np.argsort(_morton(tri.mean(axis=1)), kind="stable")
-    m = len(f)
-    L, G = int(leaf_size), int(group_size)
-    nl = max(1, -(-m // L))
-    nl = -(-nl // G) * G  # whole groups
-    ng = nl // G
-    tri_s = np.empty((nl * L, 3, 3))
-    tri_s[:m] = tri[order]
-    tri_s[m:] = tri_s[m - 1, 0]  # padding: degenerate triangles at a real vertex
-    idx = -np.ones(nl * L, dtype=np.int64)
-    idx[:m] = order
-    a, b, c = tri_s[:, 0], tri_s[:, 1], tri_s[:, 2]
-    det = _det_rows(a, b, c)
-    mom = det[:, None] * (a + b + c)
-    area = _area_rows(a, b, c)
-    det[m:] = 0.0
-    mom[m:] = 0.0
-    area[m:] = 0.0
-    data = np.concatenate(
-        [tri_s.reshape(-1, 9), det[:, None], mom, area[:, None]], axis=1
-    ).reshape(nl, L, 14)
-    corners = tri_s.reshape(nl, L * 3, 3)
-    llo, lhi = corners.min(axis=1), corners.max(axis=1)
-    lsum = data[:, :, 9:14].sum(axis=1)
-    glo = llo.reshape(ng, G, 3).min(axis=1)
-    ghi = lhi.reshape(ng, G, 3).max(axis=1)
-    gsum = lsum.reshape(ng, G, 5).sum(axis=1)
-    lc, lh = _boxes(llo, lhi)
-    gc, gh = _boxes(glo, ghi)
-    rim = (
-        vc[np.asarray(rim_vertices, dtype=np.int64)]
-        if rim_vertices is not None and len(rim_vertices)
-        else np.zeros((0, 3))
-    )
-    return Prepared(
-        origin=origin,
-        vertices=vc,
-        data=data,
-        face_index=idx.reshape(nl, L),
-        leaf_center=lc,
-        leaf_half=lh,
-        leaf_sums=lsum,
-        group_center=gc,
-        group_half=gh,
-        group_sums=gsum,
-        group_size=G,
-        rim=rim,
-        size=float(np.max(hi - lo)) if m else 0.0,
-    )
-
-
-def _plane_axes(n: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """In-plane axes (u along projected hull x, v = n x u) for a unit normal n."""
-    u = np.array([1.0, 0.0, 0.0]) - n[0] * n
-    nu = np.linalg.norm(u)
-    if nu < 1e-9:  # plane perpendicular to x: fall back to projected y
-        u = np.array([0.0, 1.0, 0.0]) - n[1] * n
-        nu = np.linalg.norm(u)
-    u = u / nu
-    return u, np.cross(n, u)
-
-
-@dataclass(frozen=True, eq=False)
-class _Clip:
-    """Internal: the clipped state of the hull against one plane (centred frame)."""
-
-    det: float
-    mom: np.ndarray
-    area: float
-    seg: np.ndarray  # (k, 2, 3) cap segments, CCW about n
-    faces: np.ndarray  # (k,) original face index of each segment
-
-
-def _classify(
-    center: np.ndarray, half: np.ndarray, n: np.ndarray, d: float
-) -> tuple[np.ndarray, np.ndarray]:
-    """Boxes wholly below the plane, and boxes that straddle it (bool arrays)."""
-    reach = half @ np.abs(n)
-    sc = center @ n - d
-    below = sc + reach < 0.0
-    return below, ~below & (sc - reach < 0.0)
-
-
-def clip(prep: Prepared, n: np.ndarray, d: float) -> _Clip:
-    """Sum the below-plane face products and collect the oriented cap segments.
-
-    Parameters
-    ----------
-    prep : Prepared
-    n : (3,) float64
-        Unit normal (the centred frame has the hull frame's directions).
-    d : float [m]
-        Plane offset in the centred frame: the plane is ``n . x = d``.
-    """
-    gb, gx = _classify(prep.group_center, prep.group_half, n, d)
-    tot = gb.astype(np.float64) @ prep.group_sums
-    empty = _Clip(float(tot[0]), tot[1:4], float(tot[4]), np.zeros((0, 2, 3)), np.zeros(0, np.int64))
-    if not gx.any():
-        return empty
-    G = prep.group_size
-    leaves = (np.flatnonzero(gx)[:, None] * G + np.arange(G)).ravel()
-    lb, lx = _classify(prep.leaf_center[leaves], prep.leaf_half[leaves], n, d)
-    tot = tot + lb.astype(np.float64) @ prep.leaf_sums[leaves]
-    empty = _Clip(float(tot[0]), tot[1:4], float(tot[4]), np.zeros((0, 2, 3)), np.zeros(0, np.int64))
-    if not lx.any():
-        return empty
-    cl = leaves[lx]
-    rows = np.take(prep.data, cl, axis=0).reshape(-1, 14)
-    tri = rows[:, :9].reshape(-1, 3, 3)
-    s = (tri.reshape(-1, 3) @ n).reshape(-1, 3) - d  # (m, 3) signed distances
-    isb = s < 0.0
-    cnt = isb[:, 0].astype(np.int8) + isb[:, 1] + isb[:, 2]
-    tot = tot + (cnt == 3).astype(np.float64) @ rows[:, 9:14]
-    mixed = np.flatnonzero((cnt == 1) | (cnt == 2))
-    if len(mixed) == 0:
-        return _Clip(float(tot[0]), tot[1:4], float(tot[4]), np.zeros((0, 2, 3)), np.zeros(0, np.int64))
-    t3 = tri[mixed]
-    s3 = s[mixed]
-    b3 = isb[mixed]
-    one = cnt[mixed] == 1  # a lone vertex below
-    lone = np.where(one, np.argmax(b3, axis=1), np.argmin(b3, axis=1))
-    r = np.arange(len(t3))[:, None]
-    perm = (lone[:, None] + np.arange(3)[None, :]) % 3
-    t3 = t3[r, perm]
-    s3 = s3[r, perm]
-    a, b, c = t3[:, 0], t3[:, 1], t3[:, 2]
-    sa, sb, sc_ = s3[:, 0:1], s3[:, 1:2], s3[:, 2:3]
-    o1 = one[:, None]
-    # each intersection is computed from its below end: bit-identical in both faces
-    pab = np.where(o1, a + (b - a) * (sa / (sa - sb)), b + (a - b) * (sb / (sb - sa)))
-    pac = np.where(o1, a + (c - a) * (sa / (sa - sc_)), c + (a - c) * (sc_ / (sc_ - sa)))
-    # submerged part: lone below -> (a, pab, pac); lone above -> (pab, b, c) + (pab, c, pac)
-    t1a = np.where(o1, a, pab)
-    t1b = np.where(o1, pab, b)
-    t1c = np.where(o1, pac, c)
-    d1 = _det_rows(t1a, t1b, t1c)
-    d2 = np.where(one, 0.0, _det_rows(pab, c, pac))
-    mom = tot[1:4] + d1 @ (t1a + t1b + t1c) + d2 @ (pab + c + pac)
-    ar = _area_rows(t1a, t1b, t1c).sum() + np.where(one, 0.0, _area_rows(pab, c, pac)).sum()
-    seg = np.stack([np.where(o1, pac, pab), np.where(o1, pab, pac)], axis=1)
-    fidx = prep.face_index[cl].ravel()[mixed]
-    return _Clip(float(tot[0] + d1.sum() + d2.sum()), mom, float(tot[4] + ar), seg, fidx)
-
-
 def waterplane_moments(
     seg: np.ndarray, origin: np.ndarray, u: np.ndarray, v: np.ndarray
 ) -> tuple[float, float, float, float, float, float]:
@@ -413,12 +160,81 @@ def check_rim(prep: Prepared, n: np.ndarray, d: float) -> None:
         )
 
 
+def unit_normal(normal: np.ndarray) -> np.ndarray:
+    """The unit vector (3,) along ``normal``, scaled before normalising so that huge or
+    tiny components neither overflow nor underflow.
+
+    Raises
+    ------
+    InputError
+        When the normal is not three finite numbers or is the zero vector.
+    """
+    n = np.asarray(normal, dtype=np.float64).reshape(-1)
+    if n.shape != (3,) or not (math.isfinite(n[0]) and math.isfinite(n[1]) and math.isfinite(n[2])):
+        raise InputError(f"normal must be three finite numbers, got {normal!r}")
+    big = max(abs(n[0]), abs(n[1]), abs(n[2]))
+    if big == 0.0:
+        raise InputError("normal must not be the zero vector")
+    n = n / big
+    return n / math.sqrt(n[0] * n[0] + n[1] * n[1] + n[2] * n[2])
+
+
+#: Kernel pass used when ``backend`` is not given: "compiled" when numba imports, else
+#: "numpy"; the environment variable ``MESHHYDRO_KERNEL=numpy`` forces the reference pass.
+DEFAULT_BACKEND = (
+    "numpy" if os.environ.get("MESHHYDRO_KERNEL", "").lower() == "numpy" or not kernel_compiled.AVAILABLE
+    else "compiled"
+)
+
+
+def _backend(backend: str | None) -> str:
+    name = DEFAULT_BACKEND if backend is None else backend
+    if name not in ("numpy", "compiled"):
+        raise InputError(f"kernel backend must be 'numpy' or 'compiled', got {backend!r}")
+    if name == "compiled" and not kernel_compiled.AVAILABLE:
+        raise InputError("the compiled kernel needs numba, which cannot be imported here")
+    return name
+
+
+def clip(prep: Prepared, n: np.ndarray, d: float, *, cull: bool = True, backend: str | None = None) -> Clip:
+    """Face sums and oriented cut segments for the plane ``n . x = d`` (centred frame, unit n).
+
+    See :func:`meshhydro.kernel_clip.clip`; ``backend`` as in :func:`cut`.
+    """
+    if _backend(backend) == "compiled":
+        return kernel_compiled.clip(prep, n, d, cull=cull)
+    return clip_numpy(prep, n, d, cull=cull)
+
+
+def _pass_numpy(prep: Prepared, n: np.ndarray, d: float, o: np.ndarray, u: np.ndarray, v: np.ndarray,
+                cull: bool) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Reference pass: face sums (5,), Green moments (6,) of the section below, all
+    waterplane segments (in + flat) and the flat ones."""
+    cl = clip_numpy(prep, n, d, cull=cull)
+    sums = np.concatenate([[cl.det], cl.mom, [cl.area]])
+    green = np.array(waterplane_moments(cl.seg, o, u, v))
+    wseg = np.concatenate([cl.seg, cl.flat]) if len(cl.flat) else cl.seg
+    return sums, green, wseg, cl.flat
+
+
+def _extent_rows(seg: np.ndarray, o: np.ndarray, u: np.ndarray, v: np.ndarray) -> np.ndarray:
+    """Least and greatest u, v and x (6,) over segment ends (inf when there are none)."""
+    if len(seg) == 0:
+        return np.array([np.inf, -np.inf, np.inf, -np.inf, np.inf, -np.inf])
+    pts = seg.reshape(-1, 3)
+    pu = (pts - o) @ u
+    pv = (pts - o) @ v
+    return np.array([pu.min(), pu.max(), pv.min(), pv.max(), pts[:, 0].min(), pts[:, 0].max()])
+
+
 def cut(
     prep: Prepared,
     point: np.ndarray,
     normal: np.ndarray,
     *,
     segments: bool = False,
+    cull: bool = True,
+    backend: str | None = None,
 ) -> Cut:
     """Exact submerged properties below the plane through ``point`` with ``normal``.
 
@@ -432,42 +248,71 @@ def cut(
         Upward normal (normalised here); water lies on the side opposite it.
     segments : bool
         Also return the cut segments (hull frame).
+    cull : bool
+        Take or skip whole blocks where that is certain (default); False opens every
+        block and must give the same result (for tests).
+    backend : {"compiled", "numpy"}, optional
+        The kernel pass; default :data:`DEFAULT_BACKEND`. Both give the same result
+        (to rounding in the order of summation).
 
     Raises
     ------
     OpenRimError
         If an open rim of the mesh lies below the plane.
+    InputError
+        If the normal is zero or not finite, or the backend is unknown.
     """
-    n = np.asarray(normal, dtype=np.float64)
-    n = n / np.linalg.norm(n)
+    n = unit_normal(normal)
     p_hull = np.asarray(point, dtype=np.float64)
     p = p_hull - prep.origin
     d = float(n @ p)
     check_rim(prep, n, d)
-    cl = clip(prep, n, d)
-    u, v = _plane_axes(n)
+    u, v = plane_axes(n)
     o = d * n  # foot of the centred origin on the plane
-    a, su, sv, suu, svv, suv = waterplane_moments(cl.seg, o, u, v)
+    if _backend(backend) == "compiled":
+        r = kernel_compiled.sweep(prep, n, d, o, u, v, cull=cull, segments=segments)
+        sums, green, ext, nseg = r.sums, r.green, r.extent, r.n_segments
+        flat = kernel_compiled.flat_segments_at(prep, r.flat_slots, n, d)
+        wseg = r.segments
+        if len(flat):
+            ext = _merge_extents(ext, _extent_rows(flat, o, u, v))
+            wseg = np.concatenate([wseg, flat]) if segments else None
+    else:
+        sums, green, wseg, flat = _pass_numpy(prep, n, d, o, u, v, cull)
+        ext, nseg = _extent_rows(wseg, o, u, v), len(wseg) - len(flat)
+        wseg = wseg if segments else None
+    return _finish(prep, p_hull, n, d, u, v, o, sums, green, flat, ext, nseg + len(flat), wseg)
+
+
+def _merge_extents(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    return np.array([min(a[0], b[0]), max(a[1], b[1]), min(a[2], b[2]), max(a[3], b[3]),
+                     min(a[4], b[4]), max(a[5], b[5])])
+
+
+def _finish(prep: Prepared, p_hull: np.ndarray, n: np.ndarray, d: float, u: np.ndarray, v: np.ndarray,
+            o: np.ndarray, sums: np.ndarray, green: np.ndarray, flat: np.ndarray, ext: np.ndarray,
+            nseg: int, wseg: np.ndarray | None) -> Cut:
+    """Volume and centroid with the cap cone, waterplane properties, extents: a :class:`Cut`."""
+    a_in = float(green[0])
+    vol = float(sums[0]) / 6.0 + a_in * d / 3.0
+    mom = sums[1:4] / 24.0 + d * (a_in * o + green[1] * u + green[2] * v) / 4.0
+    g = green
+    if len(flat):  # faces lying in the plane complete the closed waterplane
+        g = green + np.array(waterplane_moments(flat, o, u, v))
+        if abs(g[0]) <= 1e-13 * max(prep.size, 1e-300) ** 2:
+            g = np.zeros(6)
+    a, su, sv, suu, svv, suv = (float(x) for x in g)
     if a > 0.0:
         cu, cv = su / a, sv / a
-        c_wp = o + cu * u + cv * v
-        i_l = suu - a * cu * cu
-        i_t = svv - a * cv * cv
-        i_uv = suv - a * cu * cv
+        c_wp = o + cu * u + cv * v + prep.origin
+        i_l, i_t, i_uv = suu - a * cu * cu, svv - a * cv * cv, suv - a * cu * cv
     else:
-        a, c_wp, i_l, i_t, i_uv = 0.0, p, 0.0, 0.0, 0.0
-    vol = cl.det / 6.0 + a * d / 3.0
-    mom = cl.mom / 24.0 + a * d * c_wp / 4.0
-    if len(cl.seg):
-        pts = cl.seg.reshape(-1, 3)
-        pu = (pts - o) @ u
-        pv = (pts - o) @ v
-        lwl = float(pu.max() - pu.min())
-        bwl = float(pv.max() - pv.min())
-        wx = np.array([pts[:, 0].min(), pts[:, 0].max()]) + prep.origin[0]
+        a, c_wp, i_l, i_t, i_uv = 0.0, p_hull.copy(), 0.0, 0.0, 0.0
+    if nseg:
+        lwl, bwl = float(ext[1] - ext[0]), float(ext[3] - ext[2])
+        wx = np.array([ext[4], ext[5]]) + prep.origin[0]
     else:
-        lwl = bwl = 0.0
-        wx = np.array([p_hull[0], p_hull[0]])
+        lwl, bwl, wx = 0.0, 0.0, np.array([p_hull[0], p_hull[0]])
     tol = 1e-12 * max(prep.size, 1.0) ** 3
     if vol > tol:
         centroid = mom / vol + prep.origin
@@ -475,23 +320,11 @@ def cut(
         vol = max(vol, 0.0)
         centroid = p_hull.copy()
     return Cut(
-        point=p_hull.copy(),
-        normal=n,
-        volume=float(vol),
-        centroid=centroid,
-        wetted_area=float(cl.area),
-        waterplane_area=float(a),
-        waterplane_centroid=c_wp + prep.origin if a > 0 else p_hull.copy(),
-        axis_u=u,
-        axis_v=v,
-        inertia_t=float(i_t),
-        inertia_l=float(i_l),
-        inertia_uv=float(i_uv),
-        waterline_length=lwl,
-        waterline_breadth=bwl,
-        waterline_x=wx,
-        n_segments=int(len(cl.seg)),
-        segments=(cl.seg + prep.origin) if segments else None,
+        point=p_hull.copy(), normal=n, volume=float(vol), centroid=centroid,
+        wetted_area=float(sums[4]), waterplane_area=float(a), waterplane_centroid=c_wp,
+        axis_u=u, axis_v=v, inertia_t=float(i_t), inertia_l=float(i_l), inertia_uv=float(i_uv),
+        waterline_length=lwl, waterline_breadth=bwl, waterline_x=wx, n_segments=int(nseg),
+        segments=(wseg + prep.origin) if wseg is not None else None,
     )
 
 
@@ -503,6 +336,37 @@ def total_volume(prep: Prepared) -> tuple[float, np.ndarray]:
     return vol, c
 
 
+def extent_along(prep: Prepared, normal: np.ndarray) -> tuple[float, float]:
+    """Least and greatest ``n . x`` [m] over the hull's vertices (hull frame), from the blocks.
+
+    Only blocks whose bounds can hold an extreme are opened, so the cost follows the
+    surface near the extremes. The values are those of the vertices, widened by the
+    kernel's rounding allowance, so ``lo <= n . x <= hi`` holds for every vertex
+    (a safe bracket for a draft search); ``n`` is normalised here.
+    """
+    n = unit_normal(normal)
+    tol = prep.rounding(0.0)
+    off = float(n @ prep.origin)
+    lo = _least(prep, n, tol)
+    hi = -_least(prep, -n, tol)
+    return lo + off - tol, hi + off + tol
+
+
+def _least(prep: Prepared, n: np.ndarray, tol: float) -> float:
+    """Least ``n . x`` over the face corners (centred frame)."""
+    an = np.abs(n)
+    gl = prep.group_center @ n - prep.group_half @ an
+    gu = prep.group_center @ n + prep.group_half @ an
+    groups = np.flatnonzero(gl <= gu.min() + 2 * tol)
+    G = prep.group_size
+    leaves = (groups[:, None] * G + np.arange(G)).ravel()
+    ll = prep.leaf_center[leaves] @ n - prep.leaf_half[leaves] @ an
+    lu = prep.leaf_center[leaves] @ n + prep.leaf_half[leaves] @ an
+    leaves = leaves[ll <= lu.min() + 2 * tol]
+    c = prep.data[leaves, :, :9].reshape(-1, 3)
+    return float((c[:, 0] * n[0] + c[:, 1] * n[1] + c[:, 2] * n[2]).min())
+
+
 def section_area(
     prep: Prepared,
     x: float,
@@ -511,9 +375,10 @@ def section_area(
 ) -> tuple[float, float]:
     """Area [m²] of the transverse section at hull-frame ``x`` below a waterplane.
 
-    The section's cut segments (oriented about +x) are clipped to below the
-    waterplane; with the in-section origin on the waterline, the closing segments
-    along the waterline add nothing to Green's integral.
+    The section is the closed section at ``x`` (a transom lying in it counts); its
+    oriented outline is clipped to below the waterplane; with the in-section origin on
+    the waterline, the closing segments along the waterline add nothing to Green's
+    integral.
 
     Returns
     -------
@@ -524,13 +389,12 @@ def section_area(
     ex = np.array([1.0, 0.0, 0.0])
     dx = float(x - prep.origin[0])
     cl = clip(prep, ex, dx)
-    if len(cl.seg) == 0:
+    seg = np.concatenate([cl.seg, cl.flat]) if len(cl.flat) else cl.seg  # CCW about +x, centred
+    if len(seg) == 0:
         return 0.0, 0.0
-    seg = cl.seg  # CCW about +x, centred
-    nw = np.asarray(water_normal, float)
-    nw = nw / np.linalg.norm(nw)
+    nw = unit_normal(water_normal)
     dw = float(nw @ (np.asarray(water_point, float) - prep.origin))
-    s = seg @ nw - dw  # (k, 2)
+    s = seg[..., 0] * nw[0] + seg[..., 1] * nw[1] + seg[..., 2] * nw[2] - dw  # (k, 2)
     p, q = seg[:, 0], seg[:, 1]
     sp, sq = s[:, 0], s[:, 1]
     keep = (sp < 0) | (sq < 0)

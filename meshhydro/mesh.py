@@ -17,6 +17,9 @@ import numpy as np
 
 from .errors import InputError, InvalidMeshError
 from .frames import axis_matrix, unit_scale
+from .mesh_stl import Progress, binary_stl_count, read_binary_stl, weld
+from .mesh_topology import (EdgeTable, EdgeUse, bodies_by_edges, body_sums, degenerate_faces, duplicate_faces,
+                            edge_table, edge_use, rim_chains)
 
 #: A hull larger than this in its longest extent [m] is taken as a unit mistake.
 MAX_PLAUSIBLE_LENGTH = 1000.0
@@ -141,10 +144,6 @@ def _read_trimesh(source: Any) -> tuple[np.ndarray, np.ndarray, str]:
     if isinstance(source, trimesh.Trimesh):
         return np.asarray(source.vertices, float), np.asarray(source.faces, np.int64), "<trimesh>"
     path = os.fspath(source)
-    if not os.path.exists(path):
-        raise InputError(f"{path}: no such file")
-    if os.path.isdir(path):
-        raise InputError(f"{path}: is a folder, not a mesh file")
     try:
         loaded = trimesh.load(path, process=False, force="mesh")
     except Exception as exc:  # trimesh raises many kinds; all mean "not a mesh we can read"
@@ -157,6 +156,44 @@ def _read_trimesh(source: Any) -> tuple[np.ndarray, np.ndarray, str]:
     return v, f, path
 
 
+def _read_welded(source: Any, progress: Progress | None) -> tuple[np.ndarray, np.ndarray, str, int]:
+    """Vertices, faces, source name and the number of corners welded away."""
+    fast = None
+    if not hasattr(source, "vertices"):
+        path = os.fspath(source)
+        if not os.path.exists(path):
+            raise InputError(f"{path}: no such file")
+        if os.path.isdir(path):
+            raise InputError(f"{path}: is a folder, not a mesh file")
+        if path.lower().endswith(".stl"):
+            fast = binary_stl_count(path)
+    if fast is not None:
+        if fast == 0:
+            raise InvalidMeshError(f"{path}: the mesh is empty (no faces)")
+        corners = read_binary_stl(path, fast, progress)
+        v, f = weld(corners, path)
+        if progress is not None:
+            progress("weld", 1, 1)
+        return v.astype(np.float64), f, path, 3 * fast - len(v)
+    v, f, src = _read_trimesh(source)
+    if len(f) == 0 or len(v) == 0:
+        raise InvalidMeshError(f"{src}: the mesh is empty (no faces)")
+    if f.ndim != 2 or f.shape[1] != 3:
+        raise InvalidMeshError(f"{src}: faces are not triangles (shape {f.shape})")
+    if f.min() < 0 or f.max() >= len(v):
+        k = int(np.flatnonzero((f < 0).any(axis=1) | (f >= len(v)).any(axis=1))[0])
+        raise InvalidMeshError(f"{src}: face {k} refers to a vertex that does not exist")
+    bad = ~np.all(np.isfinite(v), axis=1)
+    if bad.any():
+        k = int(np.flatnonzero(bad)[0])
+        raise InvalidMeshError(
+            f"{src}: vertex {k} has a non-finite coordinate {v[k].tolist()} "
+            f"({int(bad.sum())} such vertices)"
+        )
+    vw, fw = weld(v[f], src)
+    return vw, fw, src, len(v) - len(vw)
+
+
 def read_mesh(
     source: Any,
     *,
@@ -164,8 +201,13 @@ def read_mesh(
     forward: str = "+x",
     up: str = "+z",
     offset: tuple[float, float, float] | np.ndarray = (0.0, 0.0, 0.0),
+    progress: Progress | None = None,
 ) -> MeshData:
     """Read a mesh file (STL/OBJ/PLY/OFF/GLB) or a ``trimesh.Trimesh`` into the hull frame.
+
+    Binary STL is read directly (numpy, in chunks); other formats through trimesh with
+    ``process=False``. Corners with bit-identical coordinates are welded into one vertex
+    (vertices no face uses are dropped); nothing else is changed.
 
     Parameters
     ----------
@@ -178,6 +220,8 @@ def read_mesh(
     offset : (3,) [m]
         Added to the hull-frame coordinates after scaling and rotation (for example
         to put the baseline at z = 0).
+    progress : callable(stage, done, total), optional
+        Called as the work advances (stages "read" and "weld" for a binary STL).
 
     Raises
     ------
@@ -189,80 +233,83 @@ def read_mesh(
     off = np.asarray(offset, dtype=float).reshape(-1)
     if off.shape != (3,) or not np.all(np.isfinite(off)):
         raise InputError(f"offset must be three finite numbers, got {offset!r}")
-    v, f, src = _read_trimesh(source)
-    if len(f) == 0 or len(v) == 0:
-        raise InvalidMeshError(f"{src}: the mesh is empty (no faces)")
-    if f.ndim != 2 or f.shape[1] != 3:
-        raise InvalidMeshError(f"{src}: faces are not triangles (shape {f.shape})")
-    bad = ~np.all(np.isfinite(v), axis=1)
-    if bad.any():
-        k = int(np.flatnonzero(bad)[0])
-        raise InvalidMeshError(
-            f"{src}: vertex {k} has a non-finite coordinate {v[k].tolist()} "
-            f"({int(bad.sum())} such vertices)"
-        )
-    if f.min() < 0 or f.max() >= len(v):
-        k = int(np.flatnonzero((f < 0).any(axis=1) | (f >= len(v)).any(axis=1))[0])
-        raise InvalidMeshError(f"{src}: face {k} refers to a vertex that does not exist")
-    # weld bit-identical vertices (STL stores each triangle separately)
-    uniq, inv = np.unique(v, axis=0, return_inverse=True)
-    welded = len(v) - len(uniq)
-    f = inv.reshape(-1)[f]
-    vh = (uniq * scale) @ rot.T + off
-    return MeshData(vertices=vh, faces=f, source=src, units=units, welded=int(welded))
+    v, f, src, welded = _read_welded(source, progress)
+    if scale != 1.0:
+        v *= scale
+    if not np.array_equal(rot, np.eye(3)):
+        v = v @ rot.T
+    if np.any(off):
+        v += off
+    return MeshData(vertices=v, faces=f, source=src, units=units, welded=int(welded))
 
 
 # --------------------------------------------------------------------------- topology
 
 
 def _edges(faces: np.ndarray) -> dict[str, np.ndarray]:
-    """Undirected-edge table: for each edge its vertices, forward/backward counts."""
-    e = np.concatenate([faces[:, [0, 1]], faces[:, [1, 2]], faces[:, [2, 0]]])
-    fid = np.tile(np.arange(len(faces)), 3)
-    lo = np.minimum(e[:, 0], e[:, 1])
-    hi = np.maximum(e[:, 0], e[:, 1])
-    fwd = e[:, 0] < e[:, 1]
-    key = lo * (int(e.max()) + 1) + hi
-    uk, inv = np.unique(key, return_inverse=True)
-    nf = np.bincount(inv, weights=fwd, minlength=len(uk)).astype(np.int64)
-    nt = np.bincount(inv, minlength=len(uk))
-    first = np.full(len(uk), -1, dtype=np.int64)
-    first[inv[::-1]] = fid[::-1]
-    ulo = np.zeros(len(uk), dtype=np.int64)
-    uhi = np.zeros(len(uk), dtype=np.int64)
-    ulo[inv] = lo
-    uhi[inv] = hi
-    return {"lo": ulo, "hi": uhi, "n_fwd": nf, "n_tot": nt, "first_face": first}
+    """Undirected-edge table of the faces without a repeated vertex index: for each edge
+    its vertices, forward/total counts and first face (index into ``faces``)."""
+    f = np.asarray(faces, dtype=np.int64)
+    kept = np.flatnonzero(~degenerate_faces(f))
+    et = edge_table(f[kept])
+    return {"lo": et.lo, "hi": et.hi, "n_fwd": et.n_fwd, "n_tot": et.n_tot, "first_face": kept[et.first_face]}
 
 
-def _components(n_vertices: int, faces: np.ndarray) -> np.ndarray:
-    """Component label per face (connected through shared vertices)."""
-    from scipy.sparse import coo_matrix
-    from scipy.sparse.csgraph import connected_components
+@dataclass(frozen=True, eq=False)
+class _Topology:
+    """Topology of the faces without a repeated index (``kept`` maps them to file faces)."""
 
-    m = len(faces)
-    rows = np.repeat(np.arange(m), 3)
-    g = coo_matrix((np.ones(3 * m), (rows, faces.ravel())), shape=(m, n_vertices)).tocsr()
-    # bipartite face-vertex graph
-    from scipy.sparse import bmat
-
-    big = bmat([[None, g], [g.T, None]]).tocsr()
-    _, labels = connected_components(big, directed=False)
-    lab = labels[:m]
-    _, lab = np.unique(lab, return_inverse=True)
-    return lab.reshape(-1)
+    kept: np.ndarray
+    labels: np.ndarray  # (m,) body of each file face, -1 for the left-out ones
+    et: EdgeTable
+    use: EdgeUse
+    degenerate: np.ndarray  # file face indices with a repeated vertex index
+    duplicate: np.ndarray  # file face indices
 
 
-def _signed_volume(v: np.ndarray, f: np.ndarray) -> float:
-    c = v.mean(axis=0)
-    a, b, cc = v[f[:, 0]] - c, v[f[:, 1]] - c, v[f[:, 2]] - c
-    return float(np.einsum("ij,ij->i", a, np.cross(b, cc)).sum() / 6.0)
+def _topology(faces: np.ndarray, n_vertices: int) -> _Topology:
+    deg = degenerate_faces(faces)
+    kept = np.flatnonzero(~deg)
+    fk = faces[kept] if len(kept) < len(faces) else faces
+    et = edge_table(fk, n_vertices)
+    lab_k = bodies_by_edges(len(fk), et)
+    labels = np.full(len(faces), -1, dtype=np.int64)
+    labels[kept] = lab_k
+    return _Topology(kept, labels, et, edge_use(et, lab_k), np.flatnonzero(deg), kept[duplicate_faces(fk, et)])
 
 
-def _overlaps(v: np.ndarray, f: np.ndarray, labels: np.ndarray, bodies: list[Body]) -> tuple[
-    list[tuple[int, int, float]], bool
-]:
-    """Pairs of closed bodies whose interiors overlap, with the shared volume [m³]."""
+def body_labels(md: MeshData) -> np.ndarray:
+    """Body label (m,) of each face of ``md`` (bodies joined through edges; -1 for faces
+    with a repeated vertex index)."""
+    return _topology(md.faces, len(md.vertices)).labels
+
+
+def _bodies(v: np.ndarray, f: np.ndarray, topo: _Topology) -> list[Body]:
+    """Per-body face count, closure, volume and bounds."""
+    lab = topo.labels
+    nb = int(lab.max()) + 1 if len(lab) else 0
+    bad = topo.use.boundary | topo.use.unbalanced
+    open_b = np.zeros(nb, bool)
+    open_b[topo.use.body[bad]] = True
+    vols, lo, hi, counts, first = body_sums(v, f, lab, nb)
+    return [
+        Body(index=b, n_faces=int(counts[b]), closed=bool(not open_b[b]),
+             volume=None if open_b[b] else float(vols[b]),
+             bounds=(lo[b].tolist(), hi[b].tolist()), first_face=int(first[b]))
+        for b in range(nb)
+    ]
+
+
+def _rims(v: np.ndarray, topo: _Topology) -> list[Rim]:
+    rims = [
+        Rim(n_edges, float(v[verts, 2].min()), float(v[verts, 2].max()), int(topo.kept[face]))
+        for verts, n_edges, face in rim_chains(topo.et, topo.use, len(v))
+    ]
+    return sorted(rims, key=lambda r: r.z_min)
+
+
+def _overlap_pairs(bodies: list[Body]) -> list[tuple[Body, Body]]:
+    """Pairs of closed, outward bodies whose bounding boxes share interior."""
     closed = [b for b in bodies if b.closed and b.volume and b.volume > 0]
     pairs = []
     for i, bi in enumerate(closed):
@@ -271,12 +318,18 @@ def _overlaps(v: np.ndarray, f: np.ndarray, labels: np.ndarray, bodies: list[Bod
             hi = np.minimum(bi.bounds[1], bj.bounds[1])
             if np.all(hi > lo):
                 pairs.append((bi, bj))
+    return pairs
+
+
+def _overlaps(v: np.ndarray, f: np.ndarray, labels: np.ndarray, bodies: list[Body]) -> tuple[
+    list[tuple[int, int, float]], bool
+]:
+    """Pairs of closed bodies whose interiors overlap, with the shared volume [m³] (manifold3d)."""
+    pairs = _overlap_pairs(bodies)
     if not pairs:
         return [], True
-    try:
-        import manifold3d as m3d
-    except ImportError:  # pragma: no cover - a declared dependency
-        return [], False
+    import manifold3d as m3d
+
     found = []
     checked = True
     cache: dict[int, Any] = {}
@@ -285,160 +338,142 @@ def _overlaps(v: np.ndarray, f: np.ndarray, labels: np.ndarray, bodies: list[Bod
         if b.index not in cache:
             sel = f[labels == b.index]
             used, local = np.unique(sel, return_inverse=True)
-            mesh = m3d.Mesh64(
-                vert_properties=np.asarray(v[used], np.float64),
-                tri_verts=np.asarray(local.reshape(-1, 3), np.uint32),
-            )
+            mesh = m3d.Mesh64(vert_properties=np.asarray(v[used], np.float64),
+                              tri_verts=np.asarray(local.reshape(-1, 3), np.uint32))
             cache[b.index] = m3d.Manifold(mesh)
         return cache[b.index]
 
     for bi, bj in pairs:
         try:
-            inter = manifold(bi) ^ manifold(bj)
-            vol = float(inter.volume())
-        except Exception:
+            vol = float((manifold(bi) ^ manifold(bj)).volume())
+        except Exception:  # manifold3d refuses some inputs; then the pair is not checked
             checked = False
             continue
-        tol = 1e-6 * min(bi.volume, bj.volume)
-        if vol > tol:
+        if vol > 1e-6 * min(bi.volume, bj.volume):
             found.append((bi.index, bj.index, vol))
     return found, checked
 
 
-def inspect(md: MeshData) -> HealthReport:
-    """Build the health report of a mesh already in the hull frame."""
-    v, f = md.vertices, md.faces
+def _edge_name(v: np.ndarray, et: EdgeTable, e: int) -> str:
+    a, b = int(et.lo[e]), int(et.hi[e])
+    pa = ", ".join(f"{x:.6g}" for x in v[a])
+    pb = ", ".join(f"{x:.6g}" for x in v[b])
+    return f"vertices {a}-{b} at ({pa}) and ({pb})"
+
+
+def _topology_findings(src: str, v: np.ndarray, topo: _Topology) -> tuple[list[str], list[str], int]:
+    """Problems and warnings about winding, non-manifold edges and rims; unbalanced count."""
     problems: list[str] = []
     warnings: list[str] = []
-    src = md.source
-    lo, hi = v[np.unique(f)].min(axis=0), v[np.unique(f)].max(axis=0)
-    extent = (hi - lo).tolist()
-    # degenerate and duplicate faces
-    rep = (f[:, 0] == f[:, 1]) | (f[:, 1] == f[:, 2]) | (f[:, 0] == f[:, 2])
-    cr = np.cross(v[f[:, 1]] - v[f[:, 0]], v[f[:, 2]] - v[f[:, 0]])
-    area2 = np.linalg.norm(cr, axis=1)
-    size = max(float(np.max(extent)), 1e-300)
-    degenerate = np.flatnonzero(rep | (area2 <= 1e-14 * size * size)).tolist()
-    srt = np.sort(f, axis=1)
-    _, first_idx, counts = np.unique(srt, axis=0, return_index=True, return_counts=True)
-    dup_mask = np.ones(len(f), bool)
-    dup_mask[first_idx] = False
-    duplicate = np.flatnonzero(dup_mask).tolist()
-    # edges
-    E = _edges(f)
-    n_back = E["n_tot"] - E["n_fwd"]
-    boundary = E["n_tot"] == 1
-    nonman = int(np.count_nonzero(E["n_tot"] > 2))
-    unbalanced = (E["n_fwd"] != n_back) & ~boundary
-    same_dir = int(np.count_nonzero(unbalanced))
-    consistent = same_dir == 0
-    # rims: chains of boundary edges
-    rims: list[Rim] = []
-    if boundary.any():
-        from scipy.sparse import coo_matrix
-        from scipy.sparse.csgraph import connected_components
+    use, et = topo.use, topo.et
+    unbal = np.flatnonzero(use.unbalanced)
+    if len(unbal):
+        e = int(use.edge[unbal[0]])
+        problems.append(
+            f"{src}: inconsistent winding: {len(unbal)} edges are not run once each way by the faces "
+            f"of their body (first at face {int(topo.kept[et.first_face[e]])}, edge {_edge_name(v, et, e)}); "
+            f"the volume would be wrong"
+        )
+    nm = np.flatnonzero(et.n_tot > 2)
+    if len(nm):
+        e = int(nm[0])
+        warnings.append(
+            f"{len(nm)} non-manifold edges (used by three or more faces), first the edge {_edge_name(v, et, e)} "
+            f"used by {int(et.n_tot[e])} faces (first face {int(topo.kept[et.first_face[e]])})"
+        )
+    return problems, warnings, len(unbal)
 
-        bl, bh = E["lo"][boundary], E["hi"][boundary]
-        bf = E["first_face"][boundary]
-        nv = len(v)
-        g = coo_matrix((np.ones(len(bl)), (bl, bh)), shape=(nv, nv))
-        _, lab = connected_components(g, directed=False)
-        el = lab[bl]
-        for r in np.unique(el):
-            sel = el == r
-            verts = np.unique(np.concatenate([bl[sel], bh[sel]]))
-            z = v[verts, 2]
-            rims.append(Rim(int(sel.sum()), float(z.min()), float(z.max()), int(bf[sel][0])))
-        rims.sort(key=lambda r: r.z_min)
-    # bodies
-    labels = _components(len(v), f)
-    bodies: list[Body] = []
-    bad_edge_face = E["first_face"][boundary | unbalanced]
-    open_faces = np.zeros(len(f), bool)
-    open_faces[bad_edge_face] = True
-    for b in range(int(labels.max()) + 1):
-        sel = np.flatnonzero(labels == b)
-        closed_b = not open_faces[sel].any()
-        fb = f[sel]
-        vb = v[np.unique(fb)]
-        vol = _signed_volume(v, fb) if closed_b else None
-        bodies.append(
-            Body(
-                index=b,
-                n_faces=int(len(sel)),
-                closed=bool(closed_b),
-                volume=vol,
-                bounds=(vb.min(axis=0).tolist(), vb.max(axis=0).tolist()),
-                first_face=int(sel[0]),
+
+def _body_findings(src: str, bodies: list[Body], overlaps: list[tuple[int, int, float]],
+                   checked: bool) -> tuple[list[str], list[str]]:
+    problems: list[str] = []
+    warnings: list[str] = []
+    for b in bodies:
+        if b.volume is not None and b.volume < 0:
+            problems.append(
+                f"{src}: body {b.index} (first face {b.first_face}) is inside out (volume {b.volume:.6g} m³); "
+                f"flip it explicitly with --flip-inside-out / flip_inside_out=True"
             )
-        )
-    inside_out = [b.index for b in bodies if b.volume is not None and b.volume < 0]
-    overlaps, checked = _overlaps(v, f, labels, bodies)
-    closed = not boundary.any() and consistent
-    # --- verdicts
-    if not consistent:
-        k = int(E["first_face"][unbalanced][0])
-        problems.append(
-            f"{src}: inconsistent winding: {same_dir} edges are run the same way by their "
-            f"faces (first at face {k}); the volume would be wrong"
-        )
-    if nonman and consistent:
-        warnings.append(f"{nonman} edges are shared by more than two faces (bodies touching along an edge)")
-    for bi in inside_out:
-        b = bodies[bi]
-        problems.append(
-            f"{src}: body {bi} (first face {b.first_face}) is inside out (volume {b.volume:.6g} m³); "
-            f"flip it explicitly with --flip-inside-out / flip_inside_out=True"
-        )
     for i, j, vol in overlaps:
+        inner = min(bodies[i].volume, bodies[j].volume)
+        how = (f"body {j if bodies[j].volume <= bodies[i].volume else i} lies inside the other"
+               if vol >= inner * (1 - 1e-6) else f"they overlap by {vol:.6g} m³")
         problems.append(
-            f"{src}: bodies {i} and {j} overlap by {vol:.6g} m³ (their volume would be counted twice); "
+            f"{src}: bodies {i} and {j} share volume ({how}; {vol:.6g} m³ would be counted twice); "
             f"merge them explicitly with --merge-overlaps / merge_overlaps=True"
         )
     if not checked:
         warnings.append("overlap between bodies could not be checked for every pair")
+    return problems, warnings
+
+
+def _face_findings(src: str, md: MeshData, topo: _Topology, rims: list[Rim]) -> tuple[list[str], list[str]]:
+    problems: list[str] = []
+    warnings: list[str] = []
     if rims:
         warnings.append(
             f"the mesh is open: {len(rims)} rim(s), lowest rim point at z = {rims[0].z_min:.4f} m; "
             f"usable only while the water stays below it"
         )
-    if degenerate:
-        warnings.append(f"{len(degenerate)} degenerate (zero-area) faces, first {degenerate[0]}; they add nothing")
-    if duplicate:
+    if len(topo.degenerate):
+        shown = ", ".join(str(int(k)) for k in topo.degenerate[:10])
+        more = f" and {len(topo.degenerate) - 10} more" if len(topo.degenerate) > 10 else ""
+        warnings.append(
+            f"{len(topo.degenerate)} degenerate faces (two or three identical corners): faces {shown}{more}; "
+            f"they bound nothing and are left out"
+        )
+    if len(topo.duplicate):
         problems.append(
-            f"{src}: {len(duplicate)} duplicate faces (first at face {duplicate[0]}): "
+            f"{src}: {len(topo.duplicate)} duplicate faces (first at face {int(topo.duplicate[0])}): "
             f"the surface is counted twice there"
         )
+    return problems, warnings
+
+
+def _scale_findings(src: str, size: float, units: str) -> tuple[list[str], list[str]]:
     if size > MAX_PLAUSIBLE_LENGTH:
-        problems.append(
-            f"{src}: the hull is {size:.6g} m long in unit {md.units!r}; that looks like a unit "
-            f"mistake (try --units mm)"
-        )
-    elif size < MIN_PLAUSIBLE_LENGTH:
-        warnings.append(f"the hull is only {size:.4g} m long in unit {md.units!r}; check the unit")
+        return [f"{src}: the hull is {size:.6g} m long in unit {units!r}; that looks like a unit "
+                f"mistake (try --units mm)"], []
+    if size < MIN_PLAUSIBLE_LENGTH:
+        return [], [f"the hull is only {size:.4g} m long in unit {units!r}; check the unit"]
+    return [], []
+
+
+def inspect(md: MeshData, *, progress: Progress | None = None) -> HealthReport:
+    """Build the health report of a mesh already in the hull frame.
+
+    ``progress("check", done, 3)`` is called after each of the three steps (topology,
+    bodies, rims and overlaps).
+    """
+    v, f = md.vertices, md.faces
+    src = md.source
+    step = progress or (lambda *a: None)
+    topo = _topology(f, len(v))
+    step("check", 1, 3)
+    used = np.zeros(len(v), dtype=bool)
+    used[(f[topo.kept] if len(topo.kept) else f).ravel()] = True
+    lo, hi = v[used].min(axis=0), v[used].max(axis=0)
+    size = float(np.max(hi - lo))
+    bodies = _bodies(v, f, topo)
+    step("check", 2, 3)
+    rims = _rims(v, topo)
+    overlaps, checked = _overlaps(v, f, topo.labels, bodies)
+    step("check", 3, 3)
+    problems, warnings, n_unbal = _topology_findings(src, v, topo)
+    for p, w in (_body_findings(src, bodies, overlaps, checked), _face_findings(src, md, topo, rims),
+                 _scale_findings(src, size, md.units)):
+        problems += p
+        warnings += w
     return HealthReport(
-        source=src,
-        units=md.units,
-        n_vertices=int(len(v)),
-        n_faces=int(len(f)),
-        welded_vertices=md.welded,
-        bounds=(lo.tolist(), hi.tolist()),
-        extent=extent,
-        closed=bool(closed),
-        rims=rims,
-        consistent_winding=bool(consistent),
-        inconsistent_edges=same_dir,
-        non_manifold_edges=nonman,
-        degenerate_faces=degenerate[:20],
-        duplicate_faces=duplicate[:20],
-        bodies=bodies,
-        inside_out_bodies=inside_out,
-        overlaps=overlaps,
-        overlap_checked=checked,
-        flipped_bodies=[],
-        merged=False,
-        problems=problems,
-        warnings=warnings,
+        source=src, units=md.units, n_vertices=int(len(v)), n_faces=int(len(f)), welded_vertices=md.welded,
+        bounds=(lo.tolist(), hi.tolist()), extent=(hi - lo).tolist(),
+        closed=bool(not topo.use.boundary.any() and n_unbal == 0), rims=rims,
+        consistent_winding=n_unbal == 0, inconsistent_edges=int(n_unbal),
+        non_manifold_edges=int(np.count_nonzero(topo.et.n_tot > 2)),
+        degenerate_faces=topo.degenerate[:20].tolist(), duplicate_faces=topo.duplicate[:20].tolist(),
+        bodies=bodies, inside_out_bodies=[b.index for b in bodies if b.volume is not None and b.volume < 0],
+        overlaps=overlaps, overlap_checked=checked, flipped_bodies=[], merged=False,
+        problems=problems, warnings=warnings,
     )
 
 
@@ -446,7 +481,7 @@ def flip_bodies(md: MeshData, report: HealthReport) -> tuple[MeshData, list[int]
     """Reverse the winding of the inside-out bodies (explicit repair)."""
     if not report.inside_out_bodies:
         return md, []
-    labels = _components(len(md.vertices), md.faces)
+    labels = body_labels(md)
     f = md.faces.copy()
     sel = np.isin(labels, report.inside_out_bodies)
     f[sel] = f[sel][:, ::-1]
@@ -457,7 +492,7 @@ def merge_overlapping(md: MeshData) -> MeshData:
     """Union all closed bodies with a robust boolean (manifold3d) (explicit repair)."""
     import manifold3d as m3d
 
-    labels = _components(len(md.vertices), md.faces)
+    labels = body_labels(md)
     result = None
     for b in range(int(labels.max()) + 1):
         sel = md.faces[labels == b]
@@ -487,8 +522,12 @@ def check_mesh(
     offset: tuple[float, float, float] = (0.0, 0.0, 0.0),
     flip_inside_out: bool = False,
     merge_overlaps: bool = False,
+    progress: Progress | None = None,
 ) -> tuple[MeshData, HealthReport]:
     """Read a mesh, apply only the repairs asked for, and report on it.
+
+    ``progress(stage, done, total)`` is called as the work advances (see :func:`read_mesh`;
+    stage "check" counts the steps of the health check).
 
     Returns
     -------
@@ -497,8 +536,8 @@ def check_mesh(
     report : HealthReport
         The report on that mesh; repairs made are listed in it.
     """
-    md = read_mesh(source, units=units, forward=forward, up=up, offset=offset)
-    rep = inspect(md)
+    md = read_mesh(source, units=units, forward=forward, up=up, offset=offset, progress=progress)
+    rep = inspect(md, progress=progress)
     flipped: list[int] = []
     merged = False
     if flip_inside_out and rep.inside_out_bodies:

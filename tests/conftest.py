@@ -1,12 +1,17 @@
 """Shared fixtures: reference forms built in memory (no demo data in the checks)."""
 from __future__ import annotations
 
+import os
+
 import numpy as np
 import pytest
 import trimesh
 
 from meshhydro import load_hull
 from meshhydro.forms import box, wigley
+
+#: The project folder (for the shipped demo meshes in meshes/).
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
 
 def tm(v: np.ndarray, f: np.ndarray) -> trimesh.Trimesh:

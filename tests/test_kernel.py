@@ -43,9 +43,10 @@ def test_box_km_least_at_b_over_root6(box_hull):
 
 
 def test_plane_through_vertices_and_coplanar_faces(box_hull):
-    # draft exactly at the flat bottom: nothing submerged; exactly at the deck: whole box.
+    # draft exactly at the flat bottom: nothing submerged, the waterplane is the closed
+    # section (the bottom, 20 x 6); exactly at the deck: whole box, waterplane = deck.
     c0 = box_hull.cut((10, 0, 0.0), (0, 0, 1))
-    assert c0.volume == 0.0 and c0.waterplane_area == 0.0
+    assert c0.volume == 0.0 and c0.waterplane_area == pytest.approx(120.0, rel=1e-14)
     cd = box_hull.cut((10, 0, 4.0), (0, 0, 1))
     assert cd.volume == pytest.approx(480.0, rel=1e-14)
     assert cd.waterplane_area == pytest.approx(120.0, rel=1e-14)
