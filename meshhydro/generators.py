@@ -28,7 +28,7 @@ from .hull_shapes import bulb, canoe, concat, fin, union
 from .loft import loft
 
 __all__ = ["barge", "catamaran", "outrigger", "sloop", "make_mesh", "make_hull", "GENERATORS", "PARAMETERS",
-           "Parameter", "check_parameters"]
+           "Parameter", "check_parameters", "did_you_mean"]
 
 
 @dataclass(frozen=True)
@@ -70,7 +70,7 @@ PARAMETERS: dict[str, dict[str, Parameter]] = {
         "float_length": Parameter(4.5, "m", "length of the float"),
         "float_beam": Parameter(0.36, "m", "greatest breadth of the float"),
         "float_deck": Parameter(0.68, "m", "height of the float's deck above the main keel"),
-        "float_keel": Parameter(0.2, "m", "height of the float's keel above the main keel", signed=True),
+        "float_keel": Parameter(0.2, "m", "height of the float's keel above the main keel (reached at its fullest section)", signed=True),
         "float_offset": Parameter(3.0, "m", "y of the float centreline (+ to port, - to starboard)",
                                   signed=True),
         "float_x": Parameter(1.9, "m", "x of the float's aft end", signed=True),
@@ -79,7 +79,7 @@ PARAMETERS: dict[str, dict[str, Parameter]] = {
 }
 
 
-def _suggest(word: str, options: list[str]) -> str:
+def did_you_mean(word: str, options: list[str]) -> str:
     close = difflib.get_close_matches(word, options, n=1, cutoff=0.6)
     return f"; did you mean {close[0]}?" if close else "; valid: " + ", ".join(options)
 
@@ -92,12 +92,12 @@ def check_parameters(generator: str, params: Mapping[str, Any]) -> dict[str, flo
     whole where a count is meant.
     """
     if generator not in PARAMETERS:
-        raise InputError(f"unknown generator {generator!r}{_suggest(str(generator), list(PARAMETERS))}")
+        raise InputError(f"unknown generator {generator!r}{did_you_mean(str(generator), list(PARAMETERS))}")
     spec = PARAMETERS[generator]
     out: dict[str, float] = {k: p.default for k, p in spec.items()}
     for name, value in params.items():
         if name not in spec:
-            raise InputError(f"{generator}: unknown parameter {name!r}{_suggest(str(name), list(spec))}")
+            raise InputError(f"{generator}: unknown parameter {name!r}{did_you_mean(str(name), list(spec))}")
         p = spec[name]
         if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)) \
                 or not math.isfinite(float(value)):

@@ -29,7 +29,7 @@ from .frames import SEA_WATER
 from .generators import PARAMETERS, did_you_mean
 from .study_table import read_results, write_results
 
-__all__ = ["Case", "StudySummary", "expand_cases", "run_case", "run_study", "ANALYSIS_PARAMETERS",
+__all__ = ["Case", "StudySummary", "expand_cases", "run_case", "run_study", "clear_caches", "columns", "ANALYSIS_PARAMETERS",
            "FIGURES", "STUDY_FORMAT"]
 
 #: Bumped when the meaning of a row changes, so older results are not reused.
@@ -199,6 +199,12 @@ def _kg_limit(generator: str | None, mesh: str | None, gparams: tuple, displacem
     if row.kg_max is not None and row.governing is None:  # the search stopped at its top, not at a limit
         return None, f"none: all criteria pass up to KG {top:.3g} m"
     return row.kg_max, row.governing
+
+
+def clear_caches() -> None:
+    """Forget the hulls, criteria sets and KG limits this process has kept between cases."""
+    for fn in (_hull, _criteria, _kg_limit):
+        fn.cache_clear()
 
 
 def _analyse(case: Case) -> dict[str, Any]:
