@@ -29,7 +29,7 @@ from .frames import SEA_WATER
 from .generators import PARAMETERS, did_you_mean
 from .study_table import read_results, write_results
 
-__all__ = ["Case", "StudySummary", "expand_cases", "run_case", "run_study", "clear_caches", "columns", "ANALYSIS_PARAMETERS",
+__all__ = ["Case", "StudySummary", "expand_cases", "run_case", "run_study", "run_cases", "clear_caches", "columns", "ANALYSIS_PARAMETERS",
            "FIGURES", "STUDY_FORMAT"]
 
 #: Bumped when the meaning of a row changes, so older results are not reused.
@@ -265,6 +265,27 @@ def run_case(case: Case) -> dict[str, Any]:
     return row
 
 
+def run_cases(cases: Sequence[Case]) -> list[dict[str, Any]]:
+    """:func:`run_case` for each case in turn (one task: cases sharing a hull reuse it and its KG limit)."""
+    return [run_case(c) for c in cases]
+
+
+def _tasks(todo: list[Case], workers: int) -> list[list[Case]]:
+    """Cases grouped into tasks by hull (and displacement when the KG limit is asked, which is per hull and
+    displacement); without a KG limit, large groups are cut so that there are a few tasks per worker."""
+    groups: dict[Any, list[Case]] = {}
+    for c in todo:
+        swept = dict(c.params)
+        key = (c.generator, c.mesh, tuple((k, v) for k, v in c.params if k not in ANALYSIS_PARAMETERS),
+               swept.get("displacement") if c.kg_limit else None)
+        groups.setdefault(key, []).append(c)
+    tasks = list(groups.values())
+    if todo and not todo[0].kg_limit:
+        size = max(1, math.ceil(len(todo) / (3 * max(int(workers), 1))))
+        tasks = [g[i:i + size] for g in tasks for i in range(0, len(g), size)]
+    return tasks
+
+
 def _failed_row(case: Case, exc: BaseException) -> dict[str, Any]:
     return {"case_id": case.case_id, "hull": case.hull, **dict(case.params), "verdict": "",
             "error": f"unexpected {type(exc).__name__}: {exc}", "seconds": None}
@@ -272,48 +293,63 @@ def _failed_row(case: Case, exc: BaseException) -> dict[str, Any]:
 
 # ---------------------------------------------------------------- the whole study
 
-def _client(scheduler: str | None, workers: int) -> tuple[Any, Any]:
+def _check_workers(scheduler: str | None, workers: Any) -> int | None:
+    """The number of local workers (None with a scheduler); a one-line error for a bad or unused value."""
+    if scheduler is not None:
+        if workers is not None:
+            raise InputError("workers applies to the local cluster only; a scheduler's own workers run the "
+                             "cases (give one, not both)")
+        if not isinstance(scheduler, str) or not scheduler.strip():
+            raise InputError(f"scheduler must be an address such as tcp://host:8786, got {scheduler!r}")
+        return None
+    workers = 2 if workers is None else workers
+    if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
+        raise InputError(f"workers must be a whole number of at least 1, got {workers!r}")
+    return workers
+
+
+def _client(scheduler: str | None, workers: int | None) -> tuple[Any, Any]:
     import logging
 
     from dask.distributed import Client, LocalCluster
 
-    if scheduler:
+    if scheduler is not None:
         try:
             return Client(scheduler, timeout="10s"), None
-        except (OSError, TimeoutError) as exc:
+        except (OSError, TimeoutError, ValueError) as exc:
             raise InputError(f"scheduler {scheduler}: cannot connect ({exc})") from None
-    if int(workers) < 1:
-        raise InputError(f"workers must be at least 1, got {workers}")
-    cluster = LocalCluster(n_workers=int(workers), threads_per_worker=1, processes=True,
+    cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
                            dashboard_address=None, silence_logs=logging.ERROR)
     return Client(cluster), cluster
 
 
-def _execute(todo: list[Case], scheduler: str | None, workers: int, progress: bool | None,
+def _execute(todo: list[Case], scheduler: str | None, workers: int | None, progress: bool | None,
              on_row: Any) -> None:
     from dask.distributed import as_completed
     from tqdm import tqdm
 
     client, cluster = _client(scheduler, workers)
     try:
-        futures = client.map(run_case, todo, pure=False)
-        owner = {f.key: c for f, c in zip(futures, todo)}
+        tasks = _tasks(todo, len(client.scheduler_info().get("workers", {})) or 2)
+        futures = client.map(run_cases, tasks, pure=False)
+        owner = {f.key: t for f, t in zip(futures, tasks)}
         with tqdm(total=len(todo), desc="study", unit="case",
                   disable=None if progress is None else not progress) as bar:
             for fut in as_completed(futures):
                 try:
-                    row = fut.result()
-                except Exception as exc:  # a worker lost or an undiagnosed failure: keep it as a row
-                    row = _failed_row(owner[fut.key], exc)
-                on_row(row)
-                bar.update(1)
+                    rows = fut.result()
+                except Exception as exc:  # a worker lost or an undiagnosed failure: keep it as rows
+                    rows = [_failed_row(c, exc) for c in owner[fut.key]]
+                for row in rows:
+                    on_row(row)
+                bar.update(len(rows))
     finally:
         client.close()
         if cluster is not None:
             cluster.close()
 
 
-def run_study(spec: Any, out_dir: str, scheduler: str | None = None, workers: int = 2,
+def run_study(spec: Any, out_dir: str, scheduler: str | None = None, workers: int | None = None,
               progress: bool | None = None) -> StudySummary:
     """Run every case of ``spec`` not already done in ``out_dir`` and write the results there.
 
@@ -324,7 +360,8 @@ def run_study(spec: Any, out_dir: str, scheduler: str | None = None, workers: in
         Folder for ``results.csv``, ``results.parquet``, ``README.txt`` and ``study_<parameter>.png``.
     scheduler : str, optional
         Address of a running Dask scheduler (its workers need meshhydro and the mesh files); default a
-        local cluster of ``workers`` processes with one thread each.
+        local cluster of ``workers`` processes (default 2) with one thread each. ``workers`` with a
+        scheduler is an error (it would go unused).
     progress : bool, optional
         Progress bar on standard error; None shows it only on a terminal.
 
@@ -332,6 +369,7 @@ def run_study(spec: Any, out_dir: str, scheduler: str | None = None, workers: in
     interrupted run keeps what it finished.
     """
     t0 = time.perf_counter()
+    workers = _check_workers(scheduler, workers)
     cases = expand_cases(spec)
     if os.path.exists(out_dir) and not os.path.isdir(out_dir):
         raise InputError(f"{out_dir}: is a file, not a folder")

@@ -235,3 +235,26 @@ def test_defaults_are_the_demo_vessels(gen, stl):
 def test_generator_errors(gen, params, message):
     with pytest.raises(InputError, match=message):
         make_mesh(gen, params)
+
+
+def test_existing_scheduler_by_address(tmp_path):
+    import logging
+
+    from dask.distributed import LocalCluster
+
+    data = copy.deepcopy(SMALL)
+    data["parameters"] = {"spacing": [2.0], "kg": [1.0], "stations": [16]}
+    with LocalCluster(n_workers=1, threads_per_worker=1, processes=True, dashboard_address=None,
+                      silence_logs=logging.ERROR) as cluster:
+        s = run_study(spec_of(data), str(tmp_path), scheduler=cluster.scheduler_address, progress=False)
+    assert (s.cases, s.run, s.failed) == (1, 1, 0)
+
+
+@pytest.mark.parametrize("scheduler, workers, message", [
+    ("tcp://127.0.0.1:8786", 2, "workers applies to the local cluster only"),
+    (None, 0, "workers must be a whole number of at least 1, got 0"),
+    (None, 1.5, "workers must be a whole number of at least 1, got 1.5"),
+])
+def test_run_options_checked(tmp_path, scheduler, workers, message):
+    with pytest.raises(InputError, match=message):
+        run_study(spec_of(SMALL), str(tmp_path), scheduler=scheduler, workers=workers, progress=False)
