@@ -62,6 +62,10 @@ def main(argv: list[str] | None = None) -> int:
           f"{os.cpu_count()} cores, load average before {load[0]:.2f}, after {os.getloadavg()[0]:.2f}")
     print(f"serial, one process        {t_serial:8.2f} s")
     print(f"local cluster, {args.workers} workers   {t_cluster:8.2f} s (cluster start, tables and plots included)")
+    busy_serial = sum(r["seconds"] for r in serial)
+    busy_workers = sum(r["seconds"] or 0.0 for r in table.values())
+    print(f"case time summed           {busy_serial:8.2f} s serial, {busy_workers:.2f} s on the workers "
+          "(more on the workers = cores shared with other load)")
     print(f"speed-up                   {t_serial / t_cluster:8.2f}x")
     print(f"same figures both ways     {'yes' if same else 'NO'}")
     return 0 if same else 1
