@@ -258,3 +258,12 @@ def test_existing_scheduler_by_address(tmp_path):
 def test_run_options_checked(tmp_path, scheduler, workers, message):
     with pytest.raises(InputError, match=message):
         run_study(spec_of(SMALL), str(tmp_path), scheduler=scheduler, workers=workers, progress=False)
+
+
+def test_example_study_file_expands():
+    from meshhydro.schemas import read_toml
+
+    path = os.path.join(ROOT, "meshes", "studies", "twinfin_spacing_kg.toml")
+    cases = expand_cases(validate_study(read_toml(path), path))
+    assert len(cases) == 5 * 3 and all(c.kg_limit for c in cases)
+    assert os.path.isfile(cases[0].criteria)  # the example criteria set beside the study file
