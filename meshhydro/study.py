@@ -266,8 +266,15 @@ def run_case(case: Case) -> dict[str, Any]:
 
 
 def run_cases(cases: Sequence[Case]) -> list[dict[str, Any]]:
-    """:func:`run_case` for each case in turn (one task: cases sharing a hull reuse it and its KG limit)."""
-    return [run_case(c) for c in cases]
+    """:func:`run_case` for each case in turn (one task: cases sharing a hull reuse it and its KG limit).
+    An undiagnosed failure of one case becomes that case's error row; the others still run."""
+    rows = []
+    for c in cases:
+        try:
+            rows.append(run_case(c))
+        except Exception as exc:  # a defect, not a diagnosed error: keep it visible as the case's row
+            rows.append(_failed_row(c, exc))
+    return rows
 
 
 def _tasks(todo: list[Case], workers: int) -> list[list[Case]]:
@@ -365,8 +372,8 @@ def run_study(spec: Any, out_dir: str, scheduler: str | None = None, workers: in
     progress : bool, optional
         Progress bar on standard error; None shows it only on a terminal.
 
-    The tables are rewritten whole (atomically) every 30 s while cases finish and at the end, so an
-    interrupted run keeps what it finished.
+    The tables are rewritten whole (atomically) every 30 s while cases finish, at the end, and when the
+    run is interrupted or the cluster fails, so a rerun continues from what finished.
     """
     t0 = time.perf_counter()
     workers = _check_workers(scheduler, workers)
@@ -393,7 +400,11 @@ def run_study(spec: Any, out_dir: str, scheduler: str | None = None, workers: in
             last[0] = time.perf_counter()
 
     if todo:
-        _execute(todo, scheduler, workers, progress, on_row)
+        try:
+            _execute(todo, scheduler, workers, progress, on_row)
+        except BaseException:  # interrupted or the cluster failed: keep what finished for the rerun
+            write_results(out_dir, [rows[k] for k in order if k in rows], cols)
+            raise
     table = [rows[k] for k in order]
     files = write_results(out_dir, table, cols, caution_for=spec.study.name)
     from .study_plots import plot_study

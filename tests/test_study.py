@@ -267,3 +267,15 @@ def test_example_study_file_expands():
     cases = expand_cases(validate_study(read_toml(path), path))
     assert len(cases) == 5 * 3 and all(c.kg_limit for c in cases)
     assert os.path.isfile(cases[0].criteria)  # the example criteria set beside the study file
+
+
+def test_undiagnosed_failure_is_a_row_and_others_run():
+    from dataclasses import replace
+
+    from meshhydro.study import run_cases
+
+    good = expand_cases(spec_of(SMALL))[2]
+    broken = replace(good, case_id="broken", cog=None, kg=None, params=(("spacing", 2.0),))  # no G at all
+    rows = run_cases([broken, good])
+    assert rows[0]["case_id"] == "broken" and rows[0]["error"].startswith("unexpected TypeError")
+    assert rows[1]["error"] == "" and rows[1]["max_gz_m"] > 0
