@@ -11,7 +11,7 @@ from typing import Annotated, Any, Literal, Optional, Union
 
 from pydantic import Discriminator, Field, PrivateAttr, Tag, model_validator
 
-from ._base import Num, Pos, SchemaTable, Text, Vec3, conflict, validate
+from ._base import Flag, Num, Pos, SchemaTable, Text, Vec3, conflict, fail, validate
 from .case import BUILTIN_SETS
 
 #: Most values a range may expand to (a typing slip such as step = 0.0001 stops here, not in memory).
@@ -65,16 +65,15 @@ class StudyHead(SchemaTable):
 class AnalysisSpec(SchemaTable):
     """``[analysis]``: the loading and what to compute for every case."""
 
-    displacement: Pos = Field(description="t")
+    displacement: Optional[Pos] = Field(None, description="t (or swept in [parameters])")
     kg: Optional[Num] = Field(None, description="KG [m]; G on the centre line above the centre of buoyancy")
     cog: Optional[Vec3] = Field(None, description="[x, y, z] m, hull frame")
     criteria: Optional[Text] = Field(None, description="criteria set: a built-in name or a path")
     heels: Optional[RangeSpec] = Field(None, description="heel angles [deg]")
+    kg_limit: Flag = Field(False, description="also find the largest KG meeting the criteria")
 
     @model_validator(mode="after")
     def _one_g(self) -> "AnalysisSpec":
-        if self.kg is None and self.cog is None:
-            raise conflict("kg", "missing; give kg or cog")
         if self.kg is not None and self.cog is not None:
             raise conflict("cog", "contradicts kg; give kg or cog, not both")
         if self.criteria is not None and self.criteria not in BUILTIN_SETS and not self.criteria.endswith(".toml"):
@@ -113,8 +112,23 @@ class StudySpec(SchemaTable):
 def validate_study(data: dict[str, Any], source: str) -> StudySpec:
     """Validate a study file read from TOML into a :class:`StudySpec`.
 
-    Parameter names are not checked here: they depend on the generator, which checks them.
+    Parameter names are not checked here: they depend on the generator, which checks them. The loading
+    comes from exactly one place: ``displacement`` from ``[analysis]`` or ``[parameters]``, G from
+    ``[analysis] kg``, ``[analysis] cog`` or ``[parameters] kg``.
     """
     spec: StudySpec = validate(StudySpec, data, source, ())
     spec._source = source
+    a, swept = spec.analysis, spec.parameters
+    if "displacement" in swept and a.displacement is not None:
+        raise fail(source, ["analysis", "displacement"], "contradicts [parameters] displacement; give one", ())
+    if "displacement" not in swept and a.displacement is None:
+        raise fail(source, ["analysis", "displacement"], "missing; give it here or sweep it in [parameters]", ())
+    if "kg" in swept and (a.kg is not None or a.cog is not None):
+        key = "kg" if a.kg is not None else "cog"
+        raise fail(source, ["analysis", key], "contradicts [parameters] kg; give one", ())
+    if "kg" not in swept and a.kg is None and a.cog is None:
+        raise fail(source, ["analysis", "kg"], "missing; give kg or cog, or sweep kg in [parameters]", ())
+    if a.criteria == "imo2008-weather":
+        raise fail(source, ["analysis", "criteria"], "imo2008-weather needs windage, which a study does not "
+                   "describe; use imo2008 or a criteria file", ())
     return spec
