@@ -225,7 +225,7 @@ def make_hull(generator: str, params: Mapping[str, Any] | None = None, *, name: 
     """A :class:`~meshhydro.hull.Hull` of ``generator`` with ``params``, checked like any loaded mesh."""
     import trimesh
 
-    from .hull import load_hull
+    from .vessel import load_hull
 
     v, f = make_mesh(generator, params)
     label = name or generator + "(" + ", ".join(f"{k}={v:g}" for k, v in sorted((params or {}).items())) + ")"

@@ -155,7 +155,7 @@ def _hull(generator: str | None, mesh: str | None, gparams: tuple[tuple[str, flo
         from .generators import make_hull
 
         return make_hull(generator, dict(gparams))
-    from .hull import load_hull
+    from .vessel import load_hull
 
     return load_hull(mesh)
 

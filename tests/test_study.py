@@ -279,3 +279,14 @@ def test_undiagnosed_failure_is_a_row_and_others_run():
     rows = run_cases([broken, good])
     assert rows[0]["case_id"] == "broken" and rows[0]["error"].startswith("unexpected TypeError")
     assert rows[1]["error"] == "" and rows[1]["max_gz_m"] > 0
+
+
+def test_study_command_refuses_workers_with_a_scheduler(tmp_path):
+    """The CLI maps an option that would go unused to one error line and exit 2 (no cluster is started)."""
+    from meshhydro.cli import main
+
+    p = tmp_path / "s.toml"
+    p.write_text('[study]\nname = "t"\ngenerator = "barge"\n[parameters]\nbeam = [4.0]\n'
+                 '[analysis]\ndisplacement = 30.0\nkg = 1.0\n')
+    assert main(["study", str(p), "--out", str(tmp_path / "o"), "--workers", "2",
+                 "--scheduler", "tcp://127.0.0.1:1"]) == 2
