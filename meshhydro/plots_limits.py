@@ -8,7 +8,26 @@ from typing import Any, Mapping
 
 import numpy as np
 
-from .plots import CAUTION, _figure, _save
+from .criteria import CAUTION_SHORT as CAUTION
+from .output import save_figure
+
+
+def _figure(*args: Any, **kw: Any) -> Any:
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    return plt.subplots(*args, **kw)
+
+
+def _save(fig: Any, path: str, dpi: int = 130) -> None:
+    import matplotlib.pyplot as plt
+
+    try:
+        save_figure(path, fig, dpi=dpi)
+    finally:
+        plt.close(fig)
 
 
 def _weather(ax: Any, side: str, w: Any) -> None:
