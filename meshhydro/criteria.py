@@ -1,9 +1,11 @@
 """Intact-stability criteria as data, evaluated against a righting-lever curve with margins.
 
-Shipped set: the general intact-stability criteria of the IMO International Code on
-Intact Stability 2008 (resolution MSC.267(85)), Part A, 2.2. Limits as printed in the
-code; the clause numbers 2.2.1 to 2.2.4 are given from memory and match several
-reproductions of the code.
+Shipped sets: the general intact-stability criteria of the IMO International Code on
+Intact Stability 2008 (resolution MSC.267(85)), Part A, 2.2 (``imo2008``), and the same
+with the severe wind and rolling criterion of 2.3 (``imo2008-weather``). Limits as printed
+in the code; the clause numbers 2.2.1 to 2.2.4 are given from memory and match several
+reproductions of the code (2.2.1 holds the three area limits). "(heel)" and "(areas)"
+after 2.3 are our own labels for its two parts, not clause numbers.
 
 A user set is a TOML file of our own format::
 
@@ -25,7 +27,11 @@ A user set is a TOML file of our own format::
 
     # other kinds: "gz_max_beyond" (largest GZ at or beyond `angle` [m]),
     # "angle_of_max" (angle of largest GZ [deg]), "gm" (initial GM [m]),
-    # "range" (range of positive stability [deg]), "vanishing" (angle of vanishing stability [deg])
+    # "range" (range of positive stability [deg]), "vanishing" (angle of vanishing stability [deg]),
+    # "arm_equilibrium" [deg], "arm_residual_area" [m·rad], "arm_area_ratio" [-] (keys `arm`, `to`,
+    # `to_flooding`; the arm is a case's [[arm]]), "weather" (IS Code 2.3 on the case's [weather]
+    # and [[windage]]; no keys, gives two results "<id> (heel)" and "<id> (areas)").
+    # Every kind but weather takes `minimum` or `maximum` (one of them).
 
 Kinds live in a registry (:data:`REGISTRY`): a kind is a function of a :class:`Context`
 (the curve on one side, hydrostatics, openings, and room for windage and heeling arms)

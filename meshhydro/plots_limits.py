@@ -53,7 +53,7 @@ def _weather(ax: Any, side: str, w: Any) -> None:
 def _arm(ax: Any, item: Mapping[str, Any], top: float) -> None:
     s, an, arm = item["sign"], item["analysis"], item["arm"]
     side = "starboard" if s > 0 else "port"
-    x = np.linspace(0.0, min(top, arm.max_angle), 200)
+    x = np.linspace(0.0, min(top, 90.0, arm.max_angle), 200)
     ax.plot(s * x, s * arm(x), color="tab:brown", lw=1.3, ls="-.", label=f"arm {item['name']} ({side})")
     band = an.shade.get("residual")
     if band is not None and an.residual_area is not None:

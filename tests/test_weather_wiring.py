@@ -244,3 +244,23 @@ def test_kg_limits_with_the_weather_set_and_applicability_note(tmp_path, capsys)
                                                                "2.3 (areas)"}
     # IS Code 2.2 and 2.3 are written for ships of 24 m and over: a 20 m box gets the note
     assert any("shorter than 24 m" in n for n in data["notes"])
+
+
+def test_windage_item_from_a_mesh_file(tmp_path, capsys):
+    # a 6 m × 3 m × 2 m deckhouse box standing on the deck at x 4..10: its lateral projection is exactly
+    # 6 × 2 m² centred at (7, D + 1) (closed-form rectangle), added to the hull's L × freeboard
+    hv, hf = box(6.0, 3.0, 2.0)
+    trimesh.Trimesh(hv + np.array([4.0, 0.0, D]), hf, process=False).export(tmp_path / "house.stl")
+    path = _case(tmp_path)
+    text = (tmp_path / "box.toml").read_text().replace(
+        f"area = {HOUSE_AREA}\ncentroid = [{HOUSE_X}, {HOUSE_Z}]", 'mesh = "house.stl"')
+    (tmp_path / "box.toml").write_text(text)
+    assert main(["criteria", path, "--format", "json", "--heels", "0:60:2", "--quiet"]) in (0, 1)
+    w = json.loads(capsys.readouterr().out)["weather"][0]
+    fb = D - T
+    area = L * fb + 12.0
+    assert w["windage_area"] == pytest.approx(area, rel=1e-12)
+    assert w["windage_centroid"] == pytest.approx([(L * fb * L / 2 + 12.0 * 7.0) / area,
+                                                   (L * fb * (T + fb / 2) + 12.0 * (D + 1.0)) / area], rel=1e-12)
+    assert w["items"] == [{"name": "deckhouse", "area": pytest.approx(12.0), "x": pytest.approx(7.0),
+                           "z": pytest.approx(D + 1.0)}]

@@ -14,7 +14,7 @@ from ..loading import read_case
 from .common import density, is_case, load_mesh, mesh_args, out_args, output, parse_range, water_args
 
 
-def _criteria_name(args: argparse.Namespace, spec: object) -> str:
+def criteria_name(args: argparse.Namespace, spec: object) -> str:
     """--set, else the case's [criteria] set (a path relative to the case file), else imo2008."""
     if args.set is not None:
         return args.set
@@ -31,7 +31,7 @@ def cmd_kg_limits(args: argparse.Namespace) -> int:
         hull, rho, spec, openings = case.load_hull(), density(args, case.density), case.spec, case.openings
     else:
         hull, rho = load_mesh(args, args.source), density(args)
-    cset = read_criteria(_criteria_name(args, spec))
+    cset = read_criteria(criteria_name(args, spec))
     ds = parse_range(args.displacements, "--displacements")
     rng = None
     if args.kg_range is not None:
