@@ -24,7 +24,7 @@ from .kg_limits import kg_limits_for_hull
 
 #: Columns of a KG-limit row: key, unit, digits in text.
 ROW_KEYS = (("displacement", "t", 3), ("kg_max", "m", 4), ("governing", "", 0), ("gm_required", "m", 4),
-            ("method", "", 0), ("note", "", 0))
+            ("search_end", "", 0), ("method", "", 0), ("note", "", 0))
 
 
 def kg_limits_analysis(hull: Any, displacements: Sequence[float], cset: CriteriaSet, *, density: float,
@@ -50,13 +50,17 @@ def kg_limits_analysis(hull: Any, displacements: Sequence[float], cset: Criteria
     sides = (1,) if sym else (1, -1)
     res = kg_limits_for_hull(hull, ds, cset, kg_range=kg_range, lcg=lcg, heels=heels, density=density,
                              openings=tuple(openings), sides=sides, steps=steps, wind=wind, heeling_arms=arms)
+    # search_end: every criterion still passed at the top of the KG range, so kg_max is only a lower bound
     rows = [{"displacement": r.displacement, "kg_max": r.kg_max, "governing": r.governing,
-             "gm_required": r.gm_required, "method": r.method, "note": r.note} for r in res]
+             "gm_required": r.gm_required, "search_end": r.kg_max is not None and r.governing is None,
+             "method": r.method, "note": r.note} for r in res]
     cols = [Column(k, k, u, d) for k, u, d in ROW_KEYS]
     notes = [f"sides: {'starboard (hull symmetric)' if sym else 'starboard and port'}; G on the centreline; "
              "KG is the fluid-corrected KG (free-surface rise included)",
              "method kn: cross curves of KN (exact for any KG when the vessel does not trim as it heels); "
-             "refined: curves solved at the trial KG"]
+             "refined: curves solved at the trial KG",
+             "search_end yes: all criteria still pass at the top of the KG range; kg_max is only a lower bound "
+             "there (widen the range)"]
     if cset.clauses:
         notes += applicability_notes(hull.length, len(hull.report.bodies), clauses=cset.clauses)
     sec = Section("limits", "", tables=[Table("limits", "", cols, rows)], notes=[f"note: {n}" for n in notes])

@@ -219,7 +219,8 @@ def test_kg_limits_cli_csv_and_json_where_gm_governs(tmp_path, capsys):
     assert main(["kg-limits", str(tmp_path / "b.stl"), "--displacements", spec, "--set", str(crit),
                  "--format", "csv"]) == 0
     rows = list(csv.DictReader(io.StringIO(capsys.readouterr().out)))
-    assert list(rows[0]) == ["displacement", "kg_max", "governing", "gm_required", "method", "note"]
+    assert list(rows[0]) == ["displacement", "kg_max", "governing", "gm_required", "search_end", "method", "note"]
+    assert {r["search_end"] for r in rows} == {"false"}
     t = np.array([1.0, 2.0, 3.0])
     km = t / 2 + 36 / (12 * t)
     assert [float(r["kg_max"]) for r in rows] == pytest.approx(km - 0.15, abs=1e-5)
