@@ -189,6 +189,15 @@ def test_arm_criteria_with_maxima_and_minima(box_hull):
     assert (eq > 5.0) == (not r["max 5"].passed) and r["max 5"].bound == "maximum"
     # residual area = ∫ (GZ − 0.1) from the equilibrium to 40°, against the curve's own integral of GZ
     assert r["resid"].attained == pytest.approx(c.area(eq, 40.0) - 0.1 * math.radians(40.0 - eq), abs=1e-5)
+    # ratio of areas up to 25° (wall-sided while the bilge stays wet, tan φ < 2T/B): residual over the
+    # area where the arm exceeds GZ before the equilibrium, both from the wall-sided formula by quadrature
+    ws = lambda p: math.sin(math.radians(p)) * (gm + bm / 2 * math.tan(math.radians(p)) ** 2)
+    ratio = quad(lambda p: ws(p) - 0.1, eq, 25.0)[0] / quad(lambda p: 0.1 - ws(p), 0.0, eq)[0]
+    cs3 = CriteriaSet("ratio", "test", (
+        Criterion("R", "arm_area_ratio", 1.0, params=ArmParams("crowd", 25.0)),
+        Criterion("R max", "arm_area_ratio", None, params=ArmParams("crowd", 25.0), maximum=ratio / 2),))
+    r3 = evaluate(c, cs3, heeling_arms={"crowd": arm}).results
+    assert r3[0].attained == pytest.approx(ratio, rel=2e-3) and r3[0].passed and not r3[1].passed
     # a criteria file naming an arm the case lacks fails loudly, never passes
     rep2 = evaluate(c, cs, heeling_arms={})
     assert not rep2.results[0].passed and "no heeling arm" in rep2.results[0].note
