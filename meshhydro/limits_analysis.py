@@ -64,7 +64,7 @@ def kg_limits_analysis(hull: Any, displacements: Sequence[float], cset: Criteria
     if cset.clauses:
         notes += applicability_notes(hull.length, len(hull.report.bodies), clauses=cset.clauses)
     sec = Section("limits", "", tables=[Table("limits", "", cols, rows)], notes=[f"note: {n}" for n in notes])
-    sec.figures.append(Figure("kg_limits", f"KG limits: {os.path.basename(hull.name)} - {cset.name}",
+    sec.figures.append(Figure("kg_limits", f"KG limits: {os.path.basename(hull.name)}\n{cset.name}",
                               "kg_limits", {"rows": rows}))
     doc = Document(title=f"KG limits: {hull.name}  ({cset.name}; density {density:g} t/m³, free trim)",
                    vessel=hull.name, header=[f"source: {cset.source}"], sections=[sec], cautions=[CAUTION],

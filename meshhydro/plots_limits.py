@@ -102,9 +102,13 @@ def kg_limits(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
         d = np.array([r["displacement"] for r in rows])
         kg = np.array([r["kg_max"] for r in rows])
         ax.plot(d, kg, color="tab:blue", lw=1.8, label="KG limit (fluid)")
-        for gov in sorted({str(r["governing"]) for r in rows}):
+        for gov in sorted({str(r["governing"]) for r in rows if r["governing"] is not None}):
             m = np.array([str(r["governing"]) == gov for r in rows])
             ax.plot(d[m], kg[m], "o", ms=5, label=f"governed by {gov}")
+        end = np.array([r["governing"] is None for r in rows])
+        if end.any():
+            ax.plot(d[end], kg[end], "^", ms=8, mfc="white", color="tab:red",
+                    label="all pass to the end of the search range (lower bound)")
         gm = [(r["displacement"], r["gm_required"]) for r in rows if r["gm_required"] is not None]
         if gm:
             ax2 = ax.twinx()
@@ -114,7 +118,7 @@ def kg_limits(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
     ax.set_ylabel("largest KG, fluid-corrected [m]")
     ax.grid(True, alpha=0.3)
     ax.legend(loc="best", fontsize=8)
-    ax.set_title(title or "KG limit curve")
+    ax.set_title(title or "KG limit curve", fontsize=9, wrap=True)
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     _save(fig, path)
