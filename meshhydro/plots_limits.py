@@ -64,29 +64,37 @@ def _arm(ax: Any, item: Mapping[str, Any], top: float) -> None:
 
 def criteria_gz(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
     """GZ curve (signed heel, positive starboard down) with heeling arms and their residual areas shaded,
-    and the weather criterion's levers lw1, lw2 and areas a, b.
+    and the weather criterion's levers lw1, lw2 and areas a, b: one panel per wind direction.
 
     ``data``: curve (RightingCurve), arms (list of {sign, name, arm, analysis}), weather ({side name:
     WeatherResult}). A curve computed on one side is drawn mirrored (dashed) where a weather roll
     reaches the other side."""
     curve = data["curve"]
-    fig, ax = _figure(figsize=(10, 6))
+    weather = list(data["weather"].items())
+    panels = weather or [(None, None)]
+    fig, axes = _figure(1, len(panels), figsize=(10 if len(panels) == 1 else 15, 6), squeeze=False)
     h = curve.heel
     fine = np.linspace(h[0], h[-1], max(400, 4 * len(h)))
-    ax.plot(fine, curve.interpolant()(fine), color="tab:blue", lw=2, label="GZ")
-    if data["weather"] and not np.any(h < 0):
-        ax.plot(-fine, -curve.interpolant()(fine), color="tab:blue", lw=1, ls="--", label="GZ mirrored (symmetric)")
-    for side, w in data["weather"].items():
-        _weather(ax, side, w)
     top = float(np.max(np.abs(h)))
-    for item in data["arms"]:
-        _arm(ax, item, top)
-    ax.axhline(0, color="k", lw=0.8)
-    ax.set_xlabel("heel φ [deg]  (positive: starboard down)")
-    ax.set_ylabel("righting lever GZ, heeling arms [m]")
-    ax.grid(True, alpha=0.3)
-    ax.legend(loc="best", fontsize=7)
-    ax.set_title(title or "GZ curve with heeling arms")
+    for ax, (side, w) in zip(axes[0], panels, strict=True):
+        ax.plot(fine, curve.interpolant()(fine), color="tab:blue", lw=2, label="GZ")
+        if w is not None and not np.any(h < 0):
+            ax.plot(-fine, -curve.interpolant()(fine), color="tab:blue", lw=1, ls="--",
+                    label="GZ mirrored (symmetric)")
+        if w is not None:
+            _weather(ax, side, w)
+            ax.set_xlim(-90, 90)
+            ax.set_title(f"wind heeling to {side}", fontsize=9)
+        sign = None if side is None else (1 if side == "starboard" else -1)
+        for item in data["arms"]:
+            if sign is None or item["sign"] == sign:
+                _arm(ax, item, top)
+        ax.axhline(0, color="k", lw=0.8)
+        ax.set_xlabel("heel φ [deg]  (positive: starboard down)")
+        ax.set_ylabel("righting lever GZ, heeling arms [m]")
+        ax.grid(True, alpha=0.3)
+        ax.legend(loc="best", fontsize=7)
+    fig.suptitle(title or "GZ curve with heeling arms", fontsize=11)
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
     _save(fig, path)
