@@ -274,3 +274,12 @@ def test_windage_item_from_a_mesh_file(tmp_path, capsys):
                                                    (L * fb * (T + fb / 2) + 12.0 * (D + 1.0)) / area], rel=1e-12)
     assert w["items"] == [{"name": "deckhouse", "area": pytest.approx(12.0), "x": pytest.approx(7.0),
                            "z": pytest.approx(D + 1.0)}]
+
+
+def test_kg_limits_bad_input_is_one_line(tmp_path, capsys):
+    path = _case(tmp_path)
+    for argv, word in ((["--units", "mm"], "--units"), (["--kg-range", "3:1"], "--kg-range"),
+                       (["--set", "nonesuch.toml"], "nonesuch"), (["--steps", "0"], "steps")):
+        assert main(["kg-limits", path, "--displacements", "400", *argv]) == 2
+        err = capsys.readouterr().err
+        assert word in err and err.count("\n") == 1

@@ -27,6 +27,13 @@ def criteria_name(args: argparse.Namespace, spec: object) -> str:
 def cmd_kg_limits(args: argparse.Namespace) -> int:
     spec, openings = None, ()
     if is_case(args.source):
+        given = [flag for flag, v, d in (("--units", args.units, "m"), ("--forward", args.forward, "+x"),
+                                         ("--up", args.up, "+z"), ("--offset", args.offset, "0,0,0"),
+                                         ("--flip-inside-out", args.flip_inside_out, False),
+                                         ("--merge-overlaps", args.merge_overlaps, False)) if v != d]
+        if given:
+            raise InputError(f"{args.source}: {given[0]} is not used with a case file (its [hull] table sets "
+                             "the mesh options)")
         case = read_case(args.source)
         hull, rho, spec, openings = case.load_hull(), density(args, case.density), case.spec, case.openings
     else:
