@@ -13,11 +13,13 @@ from __future__ import annotations
 
 import os
 from dataclasses import dataclass
-from typing import Callable, Sequence
+from typing import Any, Callable, Sequence
 
 import numpy as np
 
 from . import tolerances as tol
+from .applicability import applicability_notes
+from .case_wind import WEATHER_VALUES, weather_values, wind_and_arms
 from .criteria import CAUTION, CriteriaSet, Report, evaluate
 from .document import Column, Document, Figure, Quantity, Section, Table
 from .equilibrium import Equilibrium
@@ -39,7 +41,8 @@ class CaseInput:
     """One hull with one loading condition: what every stability analysis starts from.
 
     hull : FloatingHull; condition : Condition; openings : tuple of Opening;
-    density : float [t/m³]; label : str (for titles).
+    density : float [t/m³]; label : str (for titles); spec : the validated case file
+    (:class:`meshhydro.schemas.CaseSpec`: windage, weather, arms, ...) or None for a bare mesh.
     """
 
     hull: FloatingHull
@@ -47,6 +50,7 @@ class CaseInput:
     openings: tuple[Opening, ...]
     density: float
     label: str
+    spec: Any = None
 
 
 def from_case(path: str, condition_name: str | None = None, *, density: float | None = None) -> CaseInput:
@@ -54,7 +58,8 @@ def from_case(path: str, condition_name: str | None = None, *, density: float | 
     case = read_case(path)
     cond = case.condition(condition_name)
     rho = case.density if density is None else float(density)
-    return CaseInput(case.load_hull(), cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}")
+    return CaseInput(case.load_hull(), cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}",
+                     case.spec)
 
 
 def from_mesh(hull: FloatingHull, source: str, displacement: float, cog: Sequence[float], *, fsm: float = 0.0,
@@ -229,28 +234,71 @@ def righting_analysis(inp: CaseInput, heels: np.ndarray, *, direction: str = "au
 
 def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, direction: str = "auto",
                       free_trim: bool = True, progress: Progress = None) -> tuple[Report, Document]:
-    """A criteria set checked on the condition's GZ curve, and its report (verdict set)."""
+    """A criteria set checked on the condition's GZ curve, and its report (verdict set).
+
+    Weather and heeling-arm criteria take the case's [weather], [[windage]] and [[arm]] data
+    (InputError when the set needs what the input lacks)."""
+    sym = inp.hull.is_symmetric and abs(inp.condition.cog[1]) < tol.CENTRELINE
+    wind, arms = wind_and_arms(inp.spec, inp.hull, cset, mirror=sym, where=inp.label)
     curve, sides = solve_curve(inp, heels, direction=direction, free_trim=free_trim, progress=progress)
     i0 = int(np.argmin(np.abs(curve.heel)))  # upright is always on the curve
     upright = inp.hull.hydrostatics(float(curve.draft[i0] / curve.up[i0, 2]), heel=0.0, trim=float(curve.trim[i0]),
                                     density=inp.density)
-    rep = evaluate(curve, cset, sides=sides, hydrostatics=upright, openings=inp.openings)
-    keys = ["id", "side", "criterion", "unit", "required", "attained", "margin", "result", "note"]
-    rows = [{"id": r.id, "side": r.side, "criterion": r.text, "unit": r.unit, "required": r.required,
-             "attained": r.attained, "margin": r.margin, "result": "pass" if r.passed else "FAIL", "note": r.note}
-            for r in rep.results]
+    rep = evaluate(curve, cset, sides=sides, hydrostatics=upright, openings=inp.openings, windage=wind,
+                   heeling_arms=arms)
+    keys = ["id", "side", "criterion", "unit", "bound", "required", "attained", "margin", "result", "note"]
+    rows = [{"id": r.id, "side": r.side, "criterion": r.text, "unit": r.unit, "bound": r.bound[:3],
+             "required": r.required, "attained": r.attained, "margin": r.margin,
+             "result": "pass" if r.passed else "FAIL", "note": r.note} for r in rep.results]
     table = Table("results", "", [Column(k, k) for k in keys], rows,
-                  text_keys=["id", "side", "criterion", "required", "attained", "margin", "unit", "result", "note"])
-    sec = Section("results", "", tables=[table], notes=[f"note: {n}" for n in rep.notes])
-    sec.figures.append(Figure("gz", f"GZ and criteria: {inp.label} - {'PASS' if rep.passed else 'FAIL'}",
-                              "righting_curve", curve))
+                  text_keys=["id", "side", "criterion", "bound", "required", "attained", "margin", "unit", "result",
+                             "note"])
+    notes = [f"note: {n}" for n in rep.notes]
+    if cset.clauses:
+        notes += [f"note: {n}" for n in applicability_notes(upright.lwl, len(inp.hull.report.bodies),
+                                                            clauses=cset.clauses)]
+    sec = Section("results", "", tables=[table], notes=notes)
+    sec.figures.append(_criteria_figure(inp, rep, curve, sides, wind, cset, arms))
+    sections = [condition_section(inp.condition), sec]
+    weather = [] if wind is None else [{"side": k, **weather_values(*v)} for k, v in wind.last.items()]
+    for w in weather:
+        sections.append(Section(f"weather_{w['side']}", f"weather criterion (IS Code 2.3), heeling to {w['side']}:",
+                                values=[Quantity(k, label, w[k], unit) for k, label, unit in WEATHER_VALUES]))
     doc = Document(title=f"criteria: {rep.set_name}", vessel=inp.hull.name,
                    header=[f"source: {rep.source}", f"vessel: {inp.label}"],
-                   sections=[condition_section(inp.condition), sec], cautions=[rep.caution], verdict=rep.passed,
+                   sections=sections, cautions=[rep.caution], verdict=rep.passed,
                    verdict_text="all criteria met" if rep.passed else "NOT all criteria met", primary="results",
                    meta={"density": inp.density})
     doc.data = {**rep.to_dict(), "condition": inp.condition.to_dict()}
+    doc.data["notes"] = list(rep.notes) + [n[len("note: "):] for n in notes[len(rep.notes):]]
+    if weather:
+        doc.data["weather"] = weather
     return rep, doc
+
+
+def _criteria_figure(inp: CaseInput, rep: Report, curve: RightingCurve, sides: tuple[int, ...], wind: Any,
+                     cset: CriteriaSet, arms: dict[str, Any]) -> Figure:
+    """The GZ figure of a criteria check: the plain curve, or with the heeling arms the set uses (their
+    areas as the first area criterion on each arm bounds them) and the weather levers and areas a, b."""
+    from .arms import GZCurve, arm_analysis
+
+    title = f"GZ and criteria: {inp.label} - {'PASS' if rep.passed else 'FAIL'}"
+    shades = []
+    for name in sorted(cset.arms):
+        ps = [c.params for c in cset.items if getattr(c.params, "arm", None) == name]
+        p = next((q for q in ps if q.end is not None or q.to_flooding), ps[0])
+        for s in sides:
+            flood = curve.downflooding_angle(s)[0] if p.to_flooding else None
+            try:
+                an = arm_analysis(GZCurve(*curve.side(s)), arms[name], limit=p.end, flooding=flood)
+            except InputError:
+                continue  # the criterion row already says why; nothing to draw
+            shades.append({"sign": s, "name": name, "arm": arms[name], "analysis": an})
+    if wind is None and not shades:
+        return Figure("gz", title, "righting_curve", curve)
+    data = {"curve": curve, "arms": shades,
+            "weather": {} if wind is None else {k: v[0] for k, v in wind.last.items()}}
+    return Figure("gz", title, "criteria_gz", data)
 
 
 # ---------------------------------------------------------------------------- cross curves and tables

@@ -1,9 +1,11 @@
 """Intact-stability criteria as data, evaluated against a righting-lever curve with margins.
 
-Shipped set: the general intact-stability criteria of the IMO International Code on
-Intact Stability 2008 (resolution MSC.267(85)), Part A, 2.2. Limits as printed in the
-code; the clause numbers 2.2.1 to 2.2.4 are given from memory and match several
-reproductions of the code.
+Shipped sets: the general intact-stability criteria of the IMO International Code on
+Intact Stability 2008 (resolution MSC.267(85)), Part A, 2.2 (``imo2008``), and the same
+with the severe wind and rolling criterion of 2.3 (``imo2008-weather``). Limits as printed
+in the code; the clause numbers 2.2.1 to 2.2.4 are given from memory and match several
+reproductions of the code (2.2.1 holds the three area limits). "(heel)" and "(areas)"
+after 2.3 are our own labels for its two parts, not clause numbers.
 
 A user set is a TOML file of our own format::
 
@@ -25,7 +27,11 @@ A user set is a TOML file of our own format::
 
     # other kinds: "gz_max_beyond" (largest GZ at or beyond `angle` [m]),
     # "angle_of_max" (angle of largest GZ [deg]), "gm" (initial GM [m]),
-    # "range" (range of positive stability [deg]), "vanishing" (angle of vanishing stability [deg])
+    # "range" (range of positive stability [deg]), "vanishing" (angle of vanishing stability [deg]),
+    # "arm_equilibrium" [deg], "arm_residual_area" [m·rad], "arm_area_ratio" [-] (keys `arm`, `to`,
+    # `to_flooding`; the arm is a case's [[arm]]), "weather" (IS Code 2.3 on the case's [weather]
+    # and [[windage]]; no keys, gives two results "<id> (heel)" and "<id> (areas)").
+    # Every kind but weather takes `minimum` or `maximum` (one of them).
 
 Kinds live in a registry (:data:`REGISTRY`): a kind is a function of a :class:`Context`
 (the curve on one side, hydrostatics, openings, and room for windage and heeling arms)
@@ -48,6 +54,7 @@ from typing import Any, Callable, Mapping
 import numpy as np
 
 from . import tolerances as tol
+from .arms import GZCurve, arm_analysis, limit_margin
 from .errors import InputError
 from .hydrostatics import Hydrostatics
 from .loading import Opening
@@ -78,9 +85,12 @@ class Context:
         Upright particulars of the condition, when the caller has them.
     openings : tuple of Opening
     windage : object or None
-        Room for a wind model (lateral area, its centre, pressure) for weather criteria.
-    heeling_arms : mapping name -> callable
-        Room for heeling-arm curves: arm [m] as a function of heel (k,) [deg] on this side.
+        The wind model of the weather criterion: an object with ``result(curve, sign)`` returning a
+        :class:`meshhydro.weather.WeatherResult` (the analysis layer gives a
+        :class:`meshhydro.weather.WindSetup`); None when the case has no [weather] data.
+    heeling_arms : mapping name -> HeelingArm
+        The case's heeling arms (:class:`meshhydro.arms.HeelingArm`: arm [m] as a function of heel
+        [deg], heeling towards the side checked).
     """
 
     curve: RightingCurve
@@ -116,6 +126,10 @@ class Outcome:
     attained: float | None
     note: str = ""
     at_least: float | None = None
+    #: a limit worked out by the check itself (e.g. the weather criterion's θ0 limit), replacing the set's
+    required: float | None = None
+    #: the unit of ``attained`` when it is not the kind's (the weather kind's parts)
+    unit: str | None = None
 
 
 def _toml(key: str, *, required: bool = True, default: Any = dataclasses.MISSING) -> Any:
@@ -141,6 +155,24 @@ class AngleParams:
     """One angle [deg]."""
 
     angle: float = _toml("angle")
+
+
+@dataclass(frozen=True)
+class ArmParams:
+    """A named heeling arm of the case; the residual area ends at ``end`` [deg] and/or the downflooding
+    angle (``to_flooding``), and always at the second intercept of arm and GZ."""
+
+    arm: str = _toml("arm")
+    end: float | None = _toml("to", required=False, default=None)
+    to_flooding: bool = _toml("to_flooding", required=False, default=False)
+
+
+@dataclass(frozen=True)
+class WeatherParams:
+    """Which part of the weather criterion (IS Code 2.3) a result reports: ``heel`` (steady-wind heel θ0
+    against its limit) or ``areas`` (area b against area a). A user's ``kind = "weather"`` gives both."""
+
+    part: str = "heel"
 
 
 @dataclass(frozen=True)
@@ -226,17 +258,77 @@ def _vanishing(ctx: Context, p: NoParams) -> Outcome:
     v = ctx.curve.vanishing_angle(ctx.sign)
     return Outcome(v) if v is not None else Outcome(None, "no vanishing angle within the curve", at_least=ctx.top)
 
+# ---------------------------------------------------------------------------- heeling arms and weather
+
+
+def _arm_run(ctx: Context, p: ArmParams) -> Any:
+    """The arm analysis of ``p.arm`` against the curve on this side (heels from 0 towards it)."""
+    arm = ctx.heeling_arms.get(p.arm)
+    if arm is None:
+        have = ", ".join(ctx.heeling_arms) or "none"
+        raise InputError(f"no heeling arm named {p.arm!r} in the case (arms: {have})")
+    x, y = ctx.curve.side(ctx.sign)
+    if p.end is not None and p.end > ctx.top + tol.ANGLE_SLACK:
+        raise InputError(f"curve computed only to {ctx.top:g}°")
+    flood = ctx.flooding[0] if p.to_flooding else None
+    return arm_analysis(GZCurve(x, y), arm, start=0.0, limit=p.end, flooding=flood)
+
+
+def _arm_note(an: Any) -> str:
+    if an.equilibrium is None:
+        return an.end_reason
+    return f"equilibrium {an.equilibrium:.2f}°, to {an.end:.2f}° ({an.end_reason})"
+
+
+@register("arm_equilibrium", unit="deg", params=ArmParams)
+def _arm_equilibrium(ctx: Context, p: ArmParams) -> Outcome:
+    an = _arm_run(ctx, p)
+    return Outcome(an.equilibrium, "" if an.equilibrium is not None else an.end_reason)
+
+
+@register("arm_residual_area", unit="m·rad", params=ArmParams)
+def _arm_residual(ctx: Context, p: ArmParams) -> Outcome:
+    an = _arm_run(ctx, p)
+    return Outcome(an.residual_area, _arm_note(an))
+
+
+@register("arm_area_ratio", unit="-", params=ArmParams)
+def _arm_ratio(ctx: Context, p: ArmParams) -> Outcome:
+    an = _arm_run(ctx, p)
+    r = an.ratio
+    return Outcome(None if r is None or not math.isfinite(r) else r, _arm_note(an),
+                   at_least=r if r is not None and math.isinf(r) else None)
+
+
+@register("weather", unit="-", params=WeatherParams)
+def _weather(ctx: Context, p: WeatherParams) -> Outcome:
+    if ctx.windage is None:
+        raise InputError("the weather criterion needs the [weather] and [[windage]] data of a case file")
+    w = ctx.windage.result(ctx.curve, ctx.sign)
+    if p.part == "heel":
+        note = f"wind from {'port' if ctx.sign > 0 else 'starboard'}; lw1 {w.lw1:.4f} m"
+        return Outcome(w.theta0, note if w.theta0 is not None else "; ".join(w.notes), required=w.theta0_limit,
+                       unit="deg")
+    note = f"θ0−θ1 {w.theta0 - w.theta1:.2f}° to θ2 {w.theta2:.2f}° ({w.theta2_reason})" \
+        if w.theta0 is not None and w.theta2 is not None else "; ".join(w.notes)
+    return Outcome(w.area_b, note, required=w.area_a, unit="m·rad")
+
+
 @dataclass(frozen=True)
 class Criterion:
-    """One requirement: a registered ``kind``, its typed ``params`` and the minimum value (kind's unit)."""
+    """One requirement: a registered ``kind``, its typed ``params`` and its limit (kind's unit): a
+    ``minimum``, or a ``maximum`` (with ``minimum`` None)."""
 
     id: str
     kind: str
-    minimum: float
+    minimum: float | None
     text: str = ""
     params: Any = NoParams()
+    maximum: float | None = None
 
     def __post_init__(self) -> None:
+        if self.minimum is None and self.maximum is None:
+            raise InputError(f"criterion {self.id}: needs a minimum or a maximum")
         if self.kind not in REGISTRY:
             raise InputError(f"criterion {self.id}: kind must be one of {', '.join(REGISTRY)}, got {self.kind!r}")
         want = REGISTRY[self.kind].params
@@ -248,12 +340,30 @@ class Criterion:
     def unit(self) -> str:
         return REGISTRY[self.kind].unit
 
+    @property
+    def limit(self) -> float:
+        """The limit value: the minimum, or the maximum when there is no minimum."""
+        return self.minimum if self.minimum is not None else self.maximum  # type: ignore[return-value]
+
 
 @dataclass(frozen=True)
 class CriteriaSet:
+    """A named set of criteria; ``clauses`` names the IS Code clauses a built-in set applies (for the
+    applicability notes), empty for a user's set."""
+
     name: str
     source: str
     items: tuple[Criterion, ...]
+    clauses: tuple[str, ...] = ()
+
+    @property
+    def needs_weather(self) -> bool:
+        return any(c.kind == "weather" for c in self.items)
+
+    @property
+    def arms(self) -> set[str]:
+        """Names of the heeling arms the set refers to."""
+        return {c.params.arm for c in self.items if isinstance(c.params, ArmParams)}
 
 
 IMO_2008_GENERAL = CriteriaSet(
@@ -261,10 +371,10 @@ IMO_2008_GENERAL = CriteriaSet(
     source=("International Code on Intact Stability 2008, resolution MSC.267(85), Part A, 2.2 "
             "(clause numbers from memory; limits as printed)"),
     items=(
-        Criterion("2.2.1.1", "area", 0.055, "area under the GZ curve from 0° to 30°", AreaParams(0.0, 30.0)),
-        Criterion("2.2.1.2", "area", 0.090, "area from 0° to 40°, or to the downflooding angle if less",
+        Criterion("2.2.1", "area", 0.055, "area under the GZ curve from 0° to 30°", AreaParams(0.0, 30.0)),
+        Criterion("2.2.1", "area", 0.090, "area from 0° to 40°, or to the downflooding angle if less",
                   AreaParams(0.0, 40.0, to_flooding=True)),
-        Criterion("2.2.1.3", "area", 0.030, "area from 30° to 40°, or to the downflooding angle if less",
+        Criterion("2.2.1", "area", 0.030, "area from 30° to 40°, or to the downflooding angle if less",
                   AreaParams(30.0, 40.0, to_flooding=True)),
         Criterion("2.2.2", "gz_max_beyond", 0.20, "GZ at an angle of heel equal to or greater than 30°",
                   AngleParams(30.0)),
@@ -272,15 +382,36 @@ IMO_2008_GENERAL = CriteriaSet(
                   "maximum GZ at an angle of heel not less than 25° (preferably more than 30°)"),
         Criterion("2.2.4", "gm", 0.15, "initial metacentric height GM0"),
     ),
+    clauses=("2.2",),
 )
 
-BUILTIN = {"imo2008": IMO_2008_GENERAL}
+#: The weather criterion's two parts; "(heel)" and "(areas)" are our own labels, not clause numbers.
+WEATHER_ITEMS = (
+    Criterion("2.3 (heel)", "weather", None, "steady-wind heel θ0 at most 16° or 80 % of the deck-edge angle",
+              WeatherParams("heel"), maximum=16.0),
+    Criterion("2.3 (areas)", "weather", 0.0, "area b (beyond the gust-lever intercept) at least area a (roll)",
+              WeatherParams("areas")),
+)
 
-_COMMON_KEYS = ("id", "kind", "minimum", "text")
+IMO_2008_WEATHER = CriteriaSet(
+    name="IMO 2008 IS Code, Part A, 2.2 and 2.3 - general criteria and severe wind and rolling",
+    source=("International Code on Intact Stability 2008, resolution MSC.267(85), Part A, 2.2 and 2.3 "
+            "(clause numbers and some weather values from memory, see meshhydro.weather; limits as printed)"),
+    items=IMO_2008_GENERAL.items + WEATHER_ITEMS,
+    clauses=("2.2", "2.3"),
+)
+
+BUILTIN = {"imo2008": IMO_2008_GENERAL, "imo2008-weather": IMO_2008_WEATHER}
+
+_COMMON_KEYS = ("id", "kind", "minimum", "maximum", "text")
 
 
 def _param_value(raw: Any, f: dataclasses.Field, where: str) -> Any:
     key = f.metadata.get("toml", f.name)
+    if f.type in (str, "str"):
+        if not isinstance(raw, str) or not raw:
+            raise InputError(f"{where}: {key} must be a name (text)")
+        return raw
     if f.type in (bool, "bool"):
         if not isinstance(raw, bool):
             raise InputError(f"{where}: {key} must be true or false")
@@ -310,6 +441,25 @@ def parse_params(kind: str, table: Mapping[str, Any], where: str) -> Any:
     return cls(**{f.name: _param_value(table[k], f, where) for k, f in keys.items() if k in table})
 
 
+def _limit_value(c: Mapping[str, Any], key: str, where: str) -> float | None:
+    v = c.get(key)
+    if v is None:
+        return None
+    if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(float(v)):
+        raise InputError(f"{where}: {key} must be a finite number, got {v!r}")
+    return float(v)
+
+
+def _weather_items(c: Mapping[str, Any], cid: str, text: str, where: str) -> list[Criterion]:
+    """A user's ``kind = "weather"``: the two parts of IS Code 2.3 with the limits of the Code."""
+    extra = sorted(set(c) - {"id", "kind", "text"})
+    if extra:
+        raise InputError(f"{where}: unknown keys {extra} for kind weather (it takes id and text only; "
+                         "its limits are the Code's and its data come from the case's [weather])")
+    return [dataclasses.replace(w, id=f"{cid} {w.id.split(' ', 1)[1]}", text=(f"{text}: " if text else "") + w.text)
+            for w in WEATHER_ITEMS]
+
+
 def read_criteria(path: str) -> CriteriaSet:
     """Read a user criteria set (TOML), or a built-in one by name; errors name the file and the criterion."""
     if path in BUILTIN:
@@ -321,11 +471,15 @@ def read_criteria(path: str) -> CriteriaSet:
         kind = c.get("kind")
         if kind not in REGISTRY:
             raise InputError(f"{where}: kind must be one of {', '.join(REGISTRY)}, got {kind!r}")
-        mn = c.get("minimum")
-        if isinstance(mn, bool) or not isinstance(mn, (int, float)) or not math.isfinite(float(mn)):
-            raise InputError(f"{where}: needs a numeric minimum")
-        items.append(Criterion(id=str(c.get("id", k + 1)), kind=kind, minimum=float(mn),
-                               text=str(c.get("text", "")), params=parse_params(kind, c, where)))
+        cid, text = str(c.get("id", k + 1)), str(c.get("text", ""))
+        if kind == "weather":
+            items.extend(_weather_items(c, cid, text, where))
+            continue
+        mn, mx = (_limit_value(c, key, where) for key in ("minimum", "maximum"))
+        if (mn is None) == (mx is None):
+            raise InputError(f"{where}: give a numeric minimum or a numeric maximum (one of them)")
+        items.append(Criterion(id=cid, kind=kind, minimum=mn, maximum=mx, text=text,
+                               params=parse_params(kind, c, where)))
     if not items:
         raise InputError(f"{path}: no [[criterion]] entries")
     return CriteriaSet(name=str(data.get("name", os.path.basename(path))), source=str(data.get("source", "")),
@@ -345,6 +499,8 @@ class Result:
     margin: float | None
     passed: bool
     note: str = ""
+    #: "minimum" or "maximum": which way ``required`` limits the attained value
+    bound: str = "minimum"
 
 
 @dataclass(frozen=True)
@@ -374,21 +530,27 @@ def check(criterion: Criterion, ctx: Context) -> Result:
     except InputError as exc:
         out = Outcome(None, str(exc))
     a = out.attained
-    if a is not None:
-        ok = a >= criterion.minimum - tol.CRITERION_SLACK
+    is_max = criterion.minimum is None
+    req = criterion.limit if out.required is None else out.required
+    margin = limit_margin(a, None if is_max else req, req if is_max else None)
+    if margin is not None:
+        ok = margin >= -tol.CRITERION_SLACK
     else:
-        ok = out.at_least is not None and out.at_least >= criterion.minimum
-    return Result(criterion.id, criterion.text or criterion.kind, ctx.side, criterion.unit, criterion.minimum, a,
-                  None if a is None else a - criterion.minimum, bool(ok), out.note)
+        ok = not is_max and out.at_least is not None and out.at_least >= req
+    return Result(criterion.id, criterion.text or criterion.kind, ctx.side, out.unit or criterion.unit, req, a,
+                  margin, bool(ok), out.note, "maximum" if is_max else "minimum")
 
 
 def evaluate(curve: RightingCurve, cset: CriteriaSet = IMO_2008_GENERAL, *, sides: tuple[int, ...] = (1,),
-             hydrostatics: Hydrostatics | None = None, openings: tuple[Opening, ...] = ()) -> Report:
-    """Evaluate ``cset`` on a righting curve for each side (+1 starboard, -1 port)."""
+             hydrostatics: Hydrostatics | None = None, openings: tuple[Opening, ...] = (), windage: Any = None,
+             heeling_arms: Mapping[str, Any] | None = None) -> Report:
+    """Evaluate ``cset`` on a righting curve for each side (+1 starboard, -1 port); ``windage`` and
+    ``heeling_arms`` fill the :class:`Context` for the weather and arm kinds."""
     results = []
     notes = []
     for sign in sides:
-        ctx = Context(curve, sign, hydrostatics=hydrostatics, openings=tuple(openings))
+        ctx = Context(curve, sign, hydrostatics=hydrostatics, openings=tuple(openings), windage=windage,
+                      heeling_arms=dict(heeling_arms or {}))
         flood, opening = ctx.flooding
         if flood is not None:
             notes.append(f"{ctx.side}: downflooding angle {flood:.2f}° ({opening})")

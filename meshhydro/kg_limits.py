@@ -185,12 +185,17 @@ def _refine(margins: Callable[[float], Margins], kg: float | None, lo: float,
 # --------------------------------------------------------------------------- convenience on the public API
 def margins_of_report(report: Any) -> dict[str, float | None]:
     """{``id`` or ``id side``: margin} from a :class:`meshhydro.criteria.Report` (failed
-    results without a value map to None)."""
+    results without a value map to None). Results sharing an id (the three area limits of
+    clause 2.2.1) give their least margin: the clause passes when all of its limits do."""
     sides = {r.side for r in report.results}
     out: dict[str, float | None] = {}
     for r in report.results:
         key = r.id if len(sides) == 1 else f"{r.id} {r.side}"
-        out[key] = r.margin if (r.margin is not None or not r.passed) else 0.0
+        m = r.margin if (r.margin is not None or not r.passed) else 0.0
+        if key in out:
+            prev = out[key]
+            m = None if prev is None or m is None else min(prev, m)
+        out[key] = m
     return out
 
 
@@ -198,7 +203,8 @@ def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any 
                        kg_range: tuple[float, float] | None = None, lcg: float | None = None, tcg: float = 0.0,
                        heels: Sequence[float] | None = None, density: float = 1.025, openings: Sequence[Any] = (),
                        sides: tuple[int, ...] = (1,), weather: dict[str, Any] | None = None, steps: int = 40,
-                       xtol: float = 1e-6) -> list[KGLimitRow]:
+                       xtol: float = 1e-6, wind: Any = None,
+                       heeling_arms: Mapping[str, Any] | None = None) -> list[KGLimitRow]:
     """KG limits of ``hull`` for a criteria set (default IMO 2008 IS Code, Part A, 2.2).
 
     KN comes from one free-trim curve per displacement with G = (lcg, tcg, 0); ``lcg``
@@ -208,7 +214,9 @@ def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any 
     (0, hull depth). ``weather``: keywords of :func:`meshhydro.weather.weather_on_curve`
     (items, bilge, bilge_keel_area, pressure, lever_to) to include the weather criterion
     (IS Code 2.3; ids "2.3 heel" and "2.3 areas", wind from port, and from starboard too
-    when ``sides`` holds −1); the curves then also cover the port angles.
+    when ``sides`` holds −1); the curves then also cover the port angles. ``wind`` (a
+    :class:`meshhydro.weather.WindSetup`) and ``heeling_arms`` (name → HeelingArm) fill the
+    criteria context instead, for a set holding the registry's ``weather`` and ``arm_*`` kinds.
     """
     from . import criteria as _crit
 
@@ -232,7 +240,7 @@ def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any 
         return KNCurve(d, c.heel, c.kn, c.trim, c.gm_upright, c)
 
     def judge(c: Any, wind: Any = None) -> Margins:
-        out = margins_of_report(_crit.evaluate(c, cset, sides=sides))
+        out = margins_of_report(_crit.evaluate(c, cset, sides=sides, windage=ctx_wind, heeling_arms=heeling_arms))
         if weather is not None:
             from .weather import weather_margins
 
@@ -243,6 +251,7 @@ def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any 
         return out
 
     winds: dict[float, Any] = {}
+    ctx_wind = wind
 
     def fast(kn: KNCurve, kg: float) -> Margins:
         c = kn.curve

@@ -227,5 +227,8 @@ def convergence_plot(rows: Sequence[dict[str, Any]], path: str, *, title: str = 
 
 def draw(figure: Any, path: str) -> None:
     """Draw a document :class:`~meshhydro.document.Figure` to a PNG at ``path`` with the view it names."""
-    views = {"righting_curve": righting_curve, "cross_curves": cross_curves, "hydrostatic_curves": hydrostatic_curves}
+    from .plots_limits import criteria_gz, kg_limits
+
+    views = {"righting_curve": righting_curve, "cross_curves": cross_curves, "hydrostatic_curves": hydrostatic_curves,
+             "criteria_gz": criteria_gz, "kg_limits": kg_limits}
     views[figure.view](figure.data, path, title=figure.title)

@@ -282,7 +282,7 @@ def weather_for_condition(hull: Any, *, displacement: float, cog: Any, fsm: floa
 
 def weather_on_curve(hull: Any, curve: Any, *, items: Any = (), bilge: str = "round", bilge_keel_area: float = 0.0,
                      pressure: float = PRESSURE, lever_to: str = "underwater_centre", side: int = 1,
-                     windage_result: Any = None) -> tuple[WeatherResult, Any]:
+                     windage_result: Any = None, mirror: bool = False) -> tuple[WeatherResult, Any]:
     """The weather criterion on a solved RightingCurve of ``hull`` (needs 0° and enough port angles).
 
     The wind blows from port (``side`` = +1, heel to starboard) or from starboard (−1).
@@ -290,7 +290,9 @@ def weather_on_curve(hull: Any, curve: Any, *, items: Any = (), bilge: str = "ro
     (:func:`meshhydro.windage.windage`, unless ``windage_result`` is given); the roll
     factors use the upright hydrostatics (B = waterline breadth, d = draft at the
     reference point, L = waterline length, Cb as in :mod:`meshhydro.hydrostatics`) and
-    the curve's G and upright GM, both corrected for free surface.
+    the curve's G and upright GM, both corrected for free surface. ``mirror``: when the curve has no
+    angle on the windward side, extend it by GZ(−φ) = −GZ(φ) (only for a hull and load symmetric
+    about the centreplane; the caller decides).
     """
     if side not in (1, -1):
         raise InputError(f"weather: side must be 1 (wind from port) or -1 (from starboard), got {side!r}")
@@ -300,7 +302,10 @@ def weather_on_curve(hull: Any, curve: Any, *, items: Any = (), bilge: str = "ro
     roll = roll_angle(breadth=hs.bwl, draft=w.draft, lwl=hs.lwl, cb=hs.cb, kg=float(curve.cog[2]), gm=gm,
                       bilge=bilge, bilge_keel_area=bilge_keel_area)
     lw1, _ = wind_levers(w.area, w.z, curve.displacement, pressure)
-    gz = GZCurve(side * curve.heel, side * curve.gz)
+    if mirror and not np.any(side * curve.heel < -1e-9):
+        gz = GZCurve(*curve.side(side), mirror=True)
+    else:
+        gz = GZCurve(side * curve.heel, side * curve.gz)
     res = weather_criterion(gz, lw1=lw1, roll=roll, windage_area=w.area, z=w.z,
                             windage_centroid=(float(w.centroid[0]), float(w.centroid[1])),
                             deck_edge_angle=curve.deck_edge_angle(side),
@@ -333,3 +338,46 @@ def weather_margins(hull: Any, curve: Any, **spec: Any) -> dict[str, float | Non
     if gm is None or not gm > 0:
         return {"2.3 heel": None, "2.3 areas": None}
     return dict(weather_on_curve(hull, curve, **spec)[0].margins)
+
+
+@dataclass(eq=False)
+class WindSetup:
+    """A case's wind data bound to its hull, as the criteria :class:`~meshhydro.criteria.Context` wants it.
+
+    ``result(curve, sign)`` is the weather criterion on a RightingCurve of ``hull`` with the wind
+    heeling towards ``sign`` (+1 starboard: wind from port); the windage of an upright waterline is
+    worked out once and reused (it does not depend on KG), and the last results are kept so that the
+    two parts of the criterion share one computation. ``mirror``: hull and load are symmetric, so a
+    one-sided curve may be mirrored for the windward roll. ``last`` maps side name → (WeatherResult,
+    Windage) of the latest evaluation (for reports).
+    """
+
+    hull: Any
+    items: tuple[Any, ...] = ()
+    bilge: str = "round"
+    bilge_keel_area: float = 0.0
+    pressure: float = PRESSURE
+    lever_to: str = "underwater_centre"
+    mirror: bool = False
+    last: dict[str, tuple[WeatherResult, Any]] = field(default_factory=dict)
+    _windage: dict[tuple[float, float], Any] = field(default_factory=dict)
+    _recent: list[tuple[Any, int, tuple[WeatherResult, Any]]] = field(default_factory=list)
+
+    def windage(self, curve: Any) -> Any:
+        """Windage at the curve's upright waterline (cached by draft and trim)."""
+        k0 = int(np.argmin(np.abs(curve.heel)))
+        key = (float(curve.draft[k0]), float(curve.trim[k0]))
+        if key not in self._windage:
+            self._windage[key] = curve_windage(self.hull, curve, items=self.items, lever_to=self.lever_to)
+        return self._windage[key]
+
+    def result(self, curve: Any, sign: int) -> WeatherResult:
+        for c, s, out in self._recent:
+            if c is curve and s == sign:
+                return out[0]
+        out = weather_on_curve(self.hull, curve, bilge=self.bilge, bilge_keel_area=self.bilge_keel_area,
+                               pressure=self.pressure, lever_to=self.lever_to, side=sign,
+                               windage_result=self.windage(curve), mirror=self.mirror)
+        self._recent = [*self._recent[-3:], (curve, sign, out)]
+        self.last["starboard" if sign > 0 else "port"] = out
+        return out[0]

@@ -24,6 +24,10 @@ status=0
 "$MH" criteria "$CASE" --quiet || status=$?
 "$MH" criteria "$CASE" --quiet --format json --out "$OUT/criteria.json" || true
 echo "criteria exit status: $status"
+echo; echo "== 5b. with the weather criterion (IS Code 2.3; plot $OUT/gz_weather.png) and the KG limit curve"
+"$MH" criteria "$CASE" --set imo2008-weather --quiet --plot "$OUT/gz_weather.png" --format json \
+    --out "$OUT/criteria_weather.json" || true
+"$MH" kg-limits "$CASE" --displacements 30:50:5 --set imo2008-weather --plot "$OUT/kg_limits.png"
 echo; echo "== 6. heel sweep: frames, section view, contact sheet, GIF in $OUT/sweep/"
 "$MH" sweep "$CASE" --heels 0:60:5 --out "$OUT/sweep" --sheet --gif --quiet
 echo; echo "done: outputs in $OUT/"

@@ -63,6 +63,28 @@ items = [
 name = "light"
 displacement = 20.0
 cog = [5.9, 0.0, 0.95]
+
+# windage above the hull's own (the hull's lateral area comes from the mesh at each waterline)
+[[windage]]
+name = "deckhouse"
+area = 4.2
+centroid = [2.0, 2.6]
+
+[[windage]]
+name = "deck cargo"
+area = 6.0
+centroid = [7.0, 2.4]
+
+[weather]
+bilge = "sharp"
+bilge_keel_area = 0.0
+
+# the crane lifting 0.5 t at 4 m outreach on about 46.5 t: a = 0.5 x 4 / 46.5 m, falling as cos(heel)
+[[arm]]
+name = "crane lift"
+kind = "cosine"
+a = 0.043
+n = 1
 """,
     "tern_sloop": """# "Tern": 9 m sloop with a fin keel (invented demo vessel)
 [hull]

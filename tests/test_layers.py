@@ -75,8 +75,11 @@ def test_fixed_load_checks_its_input():
 def test_registry_kinds_units_and_typed_parameters():
     # units of the IMO 2008 IS Code 2.2 quantities: areas m·rad, levers m, angles deg
     units = {k: v.unit for k, v in REGISTRY.items()}
+    # heeling arms: equilibrium angle deg, residual area m·rad, ratio of areas pure; the weather kind's
+    # two parts report their own units (deg, m·rad)
     assert units == {"area": "m·rad", "gz_at": "m", "gz_max_beyond": "m", "angle_of_max": "deg", "gm": "m",
-                     "range": "deg", "vanishing": "deg"}
+                     "range": "deg", "vanishing": "deg", "arm_equilibrium": "deg", "arm_residual_area": "m·rad",
+                     "arm_area_ratio": "-", "weather": "-"}
     assert Criterion("x", "gz_at", 0.2, params=AngleParams(30.0)).unit == "m"
     with pytest.raises(InputError, match="takes AngleParams"):
         Criterion("x", "gz_at", 0.2)

@@ -17,6 +17,7 @@ from typing import Sequence
 from .. import __version__
 from ..errors import MeshHydroError
 from ..criteria import CAUTION
+from . import limits as cli_limits
 from . import mesh as cli_mesh
 from . import sections as cli_sections
 from . import stability as cli_stability
@@ -40,6 +41,7 @@ def build_parser() -> argparse.ArgumentParser:
     cli_sweep.register(sub)
     cli_sections.register(sub)
     cli_study.register(sub)
+    cli_limits.register(sub)
     return p
 
 

@@ -9,6 +9,7 @@ import argparse
 
 from .. import analysis
 from ..criteria import read_criteria
+from .limits import criteria_name
 from .common import (
     mesh_args,
     load_hull_source,
@@ -58,8 +59,8 @@ def cmd_cross(args: argparse.Namespace) -> int:
 
 
 def cmd_criteria(args: argparse.Namespace) -> int:
-    cset = read_criteria(args.set)
     inp = load_source(args)
+    cset = read_criteria(criteria_name(args, inp.spec))
     hs = _heels(args)
     bar = progress(args, analysis.curve_count(hs, inp, args.direction), "righting curve")
     rep, doc = analysis.criteria_analysis(inp, cset, hs, direction=args.direction, free_trim=not args.fixed_trim,
@@ -105,7 +106,8 @@ def register(sub: argparse._SubParsersAction) -> None:
 
     k = sub.add_parser("criteria", help="check a condition against a criteria set (exit 1 when not met)")
     source_args(k)
-    k.add_argument("--set", default="imo2008", help="imo2008 (built-in) or a criteria TOML file")
+    k.add_argument("--set", help="imo2008, imo2008-weather (built-in) or a criteria TOML file "
+                                 "(default the case's [criteria] set, else imo2008)")
     _curve_opts(k)
     out_args(k)
     k.set_defaults(func=cmd_criteria)

@@ -1,0 +1,73 @@
+"""The kg-limits command: the largest KG at which a criteria set passes, over a range of displacements.
+
+Takes a case file (its mesh, water, openings, [weather], [[windage]], [[arm]] and [criteria] set)
+or a mesh file. The analysis decides; this parses, calls and renders.
+"""
+from __future__ import annotations
+
+import argparse
+
+from .. import limits_analysis
+from ..criteria import read_criteria
+from ..errors import InputError
+from ..loading import read_case
+from .common import density, is_case, load_mesh, mesh_args, out_args, output, parse_range, water_args
+
+
+def criteria_name(args: argparse.Namespace, spec: object) -> str:
+    """--set, else the case's [criteria] set (a path relative to the case file), else imo2008."""
+    if args.set is not None:
+        return args.set
+    ref = getattr(getattr(spec, "criteria", None), "set", None)
+    if ref is None:
+        return "imo2008"
+    return ref if not ref.endswith(".toml") else spec.resolve(ref)  # type: ignore[attr-defined]
+
+
+def cmd_kg_limits(args: argparse.Namespace) -> int:
+    spec, openings = None, ()
+    if is_case(args.source):
+        given = [flag for flag, v, d in (("--units", args.units, "m"), ("--forward", args.forward, "+x"),
+                                         ("--up", args.up, "+z"), ("--offset", args.offset, "0,0,0"),
+                                         ("--flip-inside-out", args.flip_inside_out, False),
+                                         ("--merge-overlaps", args.merge_overlaps, False)) if v != d]
+        if given:
+            raise InputError(f"{args.source}: {given[0]} is not used with a case file (its [hull] table sets "
+                             "the mesh options)")
+        case = read_case(args.source)
+        hull, rho, spec, openings = case.load_hull(), density(args, case.density), case.spec, case.openings
+    else:
+        hull, rho = load_mesh(args, args.source), density(args)
+    cset = read_criteria(criteria_name(args, spec))
+    ds = parse_range(args.displacements, "--displacements")
+    rng = None
+    if args.kg_range is not None:
+        lo_hi = args.kg_range.split(":")
+        try:
+            rng = (float(lo_hi[0]), float(lo_hi[1])) if len(lo_hi) == 2 else None
+        except ValueError:
+            rng = None
+        if rng is None or not rng[0] < rng[1]:
+            raise InputError(f"--kg-range takes LOW:HIGH [m] with LOW < HIGH, got {args.kg_range!r}")
+    _, doc = limits_analysis.kg_limits_analysis(hull, ds, cset, density=rho, spec=spec, openings=openings,
+                                                lcg=args.lcg, kg_range=rng, steps=args.steps)
+    output(args, doc, args.plot)
+    return 0
+
+
+def register(sub: argparse._SubParsersAction) -> None:
+    """Add the kg-limits sub-command."""
+    k = sub.add_parser("kg-limits", help="largest KG meeting a criteria set, per displacement, and what governs")
+    k.add_argument("source", help="case file (.toml) or mesh file")
+    k.add_argument("--displacements", required=True, help="START:STOP:STEP [t] or a list")
+    k.add_argument("--set", help="imo2008, imo2008-weather or a criteria TOML file "
+                                 "(default the case's [criteria] set, else imo2008)")
+    k.add_argument("--kg-range", help="LOW:HIGH [m] searched for the limit (default 0 to the hull's depth)")
+    k.add_argument("--steps", type=int, default=40, help="grid steps over the KG range that bracket a limit "
+                                                         "(default 40)")
+    k.add_argument("--lcg", type=float, help="fixed LCG [m] instead of the LCB of level flotation")
+    k.add_argument("--plot", help="draw the KG limit curve to this PNG")
+    water_args(k)
+    mesh_args(k)
+    out_args(k)
+    k.set_defaults(func=cmd_kg_limits)
