@@ -26,7 +26,10 @@ from .frames import SEA_WATER
 from .hydrostatics import FIELDS, UNITS
 from .loading import Condition, Opening, condition, read_case
 from .mesh import HealthReport
+from .solver import check_load, is_neutral
 from .stability import CrossCurves, RightingCurve, cross_curves
+from .submerged import NOTE as SUBMERGED_NOTE
+from .submerged import check_clearance
 from .vessel import FloatingHull
 
 Progress = Callable[[], object] | None
@@ -47,6 +50,20 @@ class CaseInput:
     openings: tuple[Opening, ...]
     density: float
     label: str
+    #: for a load equal to the hull's whole buoyancy: depth [m] of the body's top below the surface
+    #: (None: just under it); an error for a load that floats at the surface
+    submerged_depth: float | None = None
+
+    def depth_option(self) -> float:
+        """The submerged depth [m] to solve with, after checking that it applies to this load."""
+        if self.submerged_depth is None:
+            return 0.0
+        c = self.condition
+        rho, v0 = check_load(self.hull, c.displacement, self.density)
+        if not is_neutral(self.hull, v0):
+            raise InputError(f"a submerged depth was given but the load ({c.displacement:.6g} t) is not the "
+                             f"hull's whole buoyancy ({self.hull.total_volume * rho:.6g} t): it floats at the surface")
+        return check_clearance(self.submerged_depth)
 
 
 def from_case(path: str, condition_name: str | None = None, *, density: float | None = None) -> CaseInput:
@@ -140,11 +157,28 @@ def _equilibrium_values(inp: CaseInput, eq: Equilibrium) -> list[Quantity]:
     ]
 
 
+def _submerged_values(inp: CaseInput, eq: Equilibrium) -> list[Quantity]:
+    """The values of a fully submerged position: no waterplane, so BM = 0 and KM = KB."""
+    q = Quantity
+    return [
+        q("submerged", "fully submerged", True), q("draft", "depth of reference point", eq.draft, "m"),
+        q("x_ref", "reference x", inp.hull.x_ref, "m"),
+        q("heel", "heel (+ starboard down)", eq.heel, "deg"), q("trim", "trim (+ bow down)", eq.trim, "deg"),
+        q("volume", "volume", eq.volume, "m³"), q("lcb", "LCB", eq.cob[0], "m"), q("tcb", "TCB", eq.cob[1], "m"),
+        q("vcb", "VCB (KB)", eq.cob[2], "m"), q("bmt", "BMt", 0.0, "m"), q("kmt", "KMt (= KB)", eq.cob[2], "m"),
+        q("gmt", "GMt (fluid)", eq.gmt, "m"), q("gml", "GMl (fluid)", eq.gml, "m"), q("stable", "stable", eq.stable),
+        q("residual_volume", "residual volume (relative)", f"{eq.residual_volume:.1e}"),
+        q("residual_lever", "residual lever", f"{eq.residual_lever:.1e}", "m"),
+    ]
+
+
 def float_analysis(inp: CaseInput) -> tuple[Equilibrium, Document]:
     """Free-floating position of the condition, and its report."""
     c = inp.condition
-    eq = inp.hull.equilibrium(c.displacement, c.cog, density=inp.density, fsm=c.fsm)
-    sec = Section("equilibrium", "equilibrium:", values=_equilibrium_values(inp, eq))
+    eq = inp.hull.equilibrium(c.displacement, c.cog, density=inp.density, fsm=c.fsm,
+                              submerged_depth=inp.depth_option())
+    values = _submerged_values(inp, eq) if eq.submerged else _equilibrium_values(inp, eq)
+    sec = Section("equilibrium", "equilibrium:", values=values)
     if eq.note:
         sec.notes.append(f"note: {eq.note}")
     doc = _doc(f"floating position: {inp.label}  (density {inp.density:g} t/m³)", inp,
@@ -172,7 +206,8 @@ def solve_curve(inp: CaseInput, heels: np.ndarray, *, direction: str = "auto", f
     hs = curve_angles(check_angles(heels, 0.0, 180.0), sides)
     c = inp.condition
     curve = inp.hull.righting_curve(c.displacement, c.cog, heels=hs, free_trim=free_trim, density=inp.density,
-                                    fsm=c.fsm, openings=inp.openings, progress=progress)
+                                    fsm=c.fsm, openings=inp.openings, progress=progress,
+                                    submerged_depth=inp.depth_option())
     return curve, sides
 
 
@@ -204,6 +239,8 @@ def _derived_section(curve: RightingCurve, sides: tuple[int, ...]) -> Section:
                                     values=vals))
     sec.notes.append("areas: exact integrals of the not-a-knot cubic spline through the computed points.")
     sec.notes.append(f"kernel evaluations per angle: {curve.evaluations.mean():.2f} on average")
+    if curve.submerged:
+        sec.notes.append(f"note: fully submerged at every angle (B fixed, BM = 0, M on B): {SUBMERGED_NOTE}")
     return sec
 
 
@@ -221,6 +258,8 @@ def righting_analysis(inp: CaseInput, heels: np.ndarray, *, direction: str = "au
         "righting_curve", curve))
     doc.data = {"condition": c.to_dict(), "free_trim": curve.free_trim, "density": curve.density,
                 "rows": doc.table("levers").rows, "summary": [curve.summary(s) for s in sides], "caution": CAUTION}
+    if curve.submerged:
+        doc.data.update(submerged=True, note=SUBMERGED_NOTE)
     return curve, doc
 
 
@@ -232,8 +271,8 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
     """A criteria set checked on the condition's GZ curve, and its report (verdict set)."""
     curve, sides = solve_curve(inp, heels, direction=direction, free_trim=free_trim, progress=progress)
     i0 = int(np.argmin(np.abs(curve.heel)))  # upright is always on the curve
-    upright = inp.hull.hydrostatics(float(curve.draft[i0] / curve.up[i0, 2]), heel=0.0, trim=float(curve.trim[i0]),
-                                    density=inp.density)
+    upright = None if curve.submerged else inp.hull.hydrostatics(
+        float(curve.draft[i0] / curve.up[i0, 2]), heel=0.0, trim=float(curve.trim[i0]), density=inp.density)
     rep = evaluate(curve, cset, sides=sides, hydrostatics=upright, openings=inp.openings)
     keys = ["id", "side", "criterion", "unit", "required", "attained", "margin", "result", "note"]
     rows = [{"id": r.id, "side": r.side, "criterion": r.text, "unit": r.unit, "required": r.required,
@@ -242,6 +281,8 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
     table = Table("results", "", [Column(k, k) for k in keys], rows,
                   text_keys=["id", "side", "criterion", "required", "attained", "margin", "unit", "result", "note"])
     sec = Section("results", "", tables=[table], notes=[f"note: {n}" for n in rep.notes])
+    if curve.submerged:
+        sec.notes.append(f"note: fully submerged at every angle (B fixed, BM = 0, M on B): {SUBMERGED_NOTE}")
     sec.figures.append(Figure("gz", f"GZ and criteria: {inp.label} - {'PASS' if rep.passed else 'FAIL'}",
                               "righting_curve", curve))
     doc = Document(title=f"criteria: {rep.set_name}", vessel=inp.hull.name,
@@ -250,6 +291,8 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
                    verdict_text="all criteria met" if rep.passed else "NOT all criteria met", primary="results",
                    meta={"density": inp.density})
     doc.data = {**rep.to_dict(), "condition": inp.condition.to_dict()}
+    if curve.submerged:
+        doc.data.update(submerged=True, submerged_note=SUBMERGED_NOTE)
     return rep, doc
 
 

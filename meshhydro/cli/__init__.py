@@ -20,6 +20,7 @@ from ..criteria import CAUTION
 from . import mesh as cli_mesh
 from . import sections as cli_sections
 from . import stability as cli_stability
+from . import submergence as cli_submergence
 from . import sweep as cli_sweep
 
 # ---------------------------------------------------------------------------- main
@@ -38,6 +39,7 @@ def build_parser() -> argparse.ArgumentParser:
     cli_stability.register(sub)
     cli_sweep.register(sub)
     cli_sections.register(sub)
+    cli_submergence.register(sub)
     return p
 
 
