@@ -71,7 +71,10 @@ def from_case(path: str, condition_name: str | None = None, *, density: float | 
     case = read_case(path)
     cond = case.condition(condition_name)
     rho = case.density if density is None else float(density)
-    return CaseInput(case.load_hull(), cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}")
+    specs = [c for c in getattr(case.spec, "conditions", ()) if c.name == cond.name]
+    depth = specs[0].submerged_depth if specs else None
+    return CaseInput(case.load_hull(), cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}",
+                     submerged_depth=depth)
 
 
 def from_mesh(hull: FloatingHull, source: str, displacement: float, cog: Sequence[float], *, fsm: float = 0.0,

@@ -196,7 +196,7 @@ def section_view(hull: Hull | Sequence[Hull], traces: Sequence[Any], path: str, 
     ax.legend(fontsize=7, loc="upper right")
     notes = [getattr(t, "note", "") for t in traces]
     if any(notes):
-        ax.text(0.02, 0.98, "\n".join(n for n in notes if n), transform=ax.transAxes, fontsize=8, va="top",
+        ax.text(0.02, 0.02, "\n".join(n for n in notes if n), transform=ax.transAxes, fontsize=8, va="bottom",
                 ha="left", color="0.15", bbox={"facecolor": "white", "alpha": 0.8, "lw": 0})
     ax.set_title("Heel sweep: trace of B and locus of the metacentre (hull frame)", fontsize=10)
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")

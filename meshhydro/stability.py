@@ -401,7 +401,9 @@ def cross_curves(hull: Hull, displacements: Sequence[float], heels: Sequence[flo
         rho, v0 = check_load(hull, d, density)
         ev = Evaluator(hull)
         x = lcg
-        if x is None:
+        if x is None and is_neutral(hull, v0):  # fully submerged: B is the hull's centroid
+            x = float(hull.total_centroid[0])
+        elif x is None:
             x = float(solve_volume(ev, v0, 0.0, 0.0).cut.centroid[0])
         lcgs[i] = x
         c = righting_curve(hull, displacement=d, cog=np.array([x, 0.0, 0.0]), heels=hs, density=density,

@@ -75,3 +75,51 @@ def test_submergence_command(mesh, tmp_path, capsys):
     assert main(["submergence", mesh, "--displacements", "123,492"]) == 0
     out = capsys.readouterr().out
     assert "fully submerged from draft 4.0000 m" in out and NOTE in out
+
+
+def test_criteria_on_submerged_state(mesh, capsys):
+    # GZ = 0.5 sin φ: areas 0.5 (cos a - cos b) m·rad (calculus); IMO 2008 limits from REFERENCES.md
+    assert main(["criteria", mesh, "--displacement", FULL, "--cog", "10,0,1.5", "--format", "json",
+                 "--quiet"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    att = {r["id"]: r["attained"] for r in d["results"]}
+    assert att["2.2.1.1"] == pytest.approx(0.5 * (1 - math.cos(math.radians(30))), rel=1e-5)
+    assert att["2.2.1.3"] == pytest.approx(0.5 * (math.cos(math.radians(30)) - math.cos(math.radians(40))),
+                                           rel=1e-5)
+    assert att["2.2.4"] == pytest.approx(0.5, abs=1e-12)  # GM0 = KB - KG with BM = 0
+    assert d["submerged"] is True and d["submerged_note"] == NOTE
+
+
+def test_cross_curves_at_whole_buoyancy(mesh, capsys):
+    # submerged: KN = KB sin φ with B at the box's centre (y = 0, z = D/2 = 2 m)
+    assert main(["cross-curves", mesh, "--displacements", "246," + FULL, "--heels", "0:90:30",
+                 "--format", "json", "--quiet"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["kn"][1] == pytest.approx([2.0 * math.sin(math.radians(h)) for h in (0, 30, 60, 90)], abs=1e-12)
+
+
+def test_html_report_of_submergence(mesh):
+    from meshhydro import figures
+    from meshhydro.html import render_html
+    from meshhydro.submergence import submergence_analysis
+    from meshhydro.vessel import load_hull
+
+    _, doc = submergence_analysis(load_hull(mesh), drafts=[1.0, 2.0, 3.0, 5.0], density=1.025, kg=2.5)
+    html = render_html(doc, draw=figures.draw)
+    assert "<svg" in html and "fully submerged from draft 5.0000 m" in html
+
+
+def test_case_file_submerged_depth(mesh, tmp_path, capsys):
+    case = tmp_path / "sub.toml"
+    case.write_text(f'[hull]\nmesh = "{mesh}"\n[[condition]]\nname = "dived"\ndisplacement = {FULL}\n'
+                    'cog = [10.0, 0.0, 1.5]\nsubmerged_depth = 2.5\n')
+    assert main(["float", str(case), "--format", "json"]) == 0
+    eq = json.loads(capsys.readouterr().out)["equilibrium"]
+    assert eq["draft"] == pytest.approx(4.0 + 2.5, abs=1e-12)  # deck 2.5 m under the surface
+    # the command-line option overrides the file's
+    assert main(["float", str(case), "--format", "json", "--submerged-depth", "1"]) == 0
+    assert json.loads(capsys.readouterr().out)["equilibrium"]["draft"] == pytest.approx(5.0, abs=1e-12)
+    case.write_text(f'[hull]\nmesh = "{mesh}"\n[[condition]]\ndisplacement = 100\n'
+                    'cog = [10.0, 0.0, 1.5]\nsubmerged_depth = -1\n')
+    assert main(["float", str(case)]) == 2
+    assert "submerged_depth" in capsys.readouterr().err
