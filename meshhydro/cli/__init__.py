@@ -1,6 +1,6 @@
 """Command-line interface: parse, call the analyses, render their documents, map errors to exit codes.
 
-One module per topic (``mesh``, ``stability``, ``sweep``, ``sections``), each with a ``register``,
+One module per topic (``mesh``, ``stability``, ``sweep``, ``sections``, ``submergence``), each with a ``register``,
 and ``common`` for shared options, loading and output; this module builds the parser and runs ``main``.
 
 Exit codes: 0 success; 1 a criteria check failed (``criteria`` only); 2 bad input;
