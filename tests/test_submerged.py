@@ -20,8 +20,7 @@ import trimesh
 
 from meshhydro import CannotFloatError, load_hull
 from meshhydro.analysis import float_analysis, from_mesh, righting_analysis
-from meshhydro.document import Figure
-from meshhydro.forms import box, cylinder
+from meshhydro.forms import cylinder
 from meshhydro.renderers import render
 from meshhydro.submerged import NOTE
 from meshhydro.submergence import sequence_by_displacements, sequence_by_drafts, submergence_analysis
@@ -125,7 +124,7 @@ def _shapely_bm(length: float, t: float) -> tuple[float, float]:
 
 
 def test_cylinder_through_submergence_bm_closed_form(tube):
-    m, hull, v = tube
+    m, hull, _ = tube
     R, L = 1.0, 6.0
     ts = np.array([0.2, 0.6, 1.0, 1.4, 1.8, 1.95, 1.99, 2.5])
     steps = sequence_by_drafts(hull, ts, density=RHO)
