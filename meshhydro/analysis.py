@@ -28,7 +28,10 @@ from .frames import SEA_WATER
 from .hydrostatics import FIELDS, UNITS
 from .loading import Condition, Opening, condition, read_case
 from .mesh import HealthReport
+from .solver import check_load, is_neutral
 from .stability import CrossCurves, RightingCurve, cross_curves
+from .submerged import NOTE as SUBMERGED_NOTE
+from .submerged import check_clearance
 from .vessel import FloatingHull
 
 Progress = Callable[[], object] | None
@@ -51,6 +54,20 @@ class CaseInput:
     density: float
     label: str
     spec: Any = None
+    #: for a load equal to the hull's whole buoyancy: depth [m] of the body's top below the surface
+    #: (None: just under it); an error for a load that floats at the surface
+    submerged_depth: float | None = None
+
+    def depth_option(self) -> float:
+        """The submerged depth [m] to solve with, after checking that it applies to this load."""
+        if self.submerged_depth is None:
+            return 0.0
+        c = self.condition
+        rho, v0 = check_load(self.hull, c.displacement, self.density)
+        if not is_neutral(self.hull, v0):
+            raise InputError(f"a submerged depth was given but the load ({c.displacement:.6g} t) is not the "
+                             f"hull's whole buoyancy ({self.hull.total_volume * rho:.6g} t): it floats at the surface")
+        return check_clearance(self.submerged_depth)
 
 
 def from_case(path: str, condition_name: str | None = None, *, density: float | None = None) -> CaseInput:
@@ -58,8 +75,10 @@ def from_case(path: str, condition_name: str | None = None, *, density: float | 
     case = read_case(path)
     cond = case.condition(condition_name)
     rho = case.density if density is None else float(density)
+    specs = [c for c in getattr(case.spec, "conditions", ()) if c.name == cond.name]
+    depth = specs[0].submerged_depth if specs else None
     return CaseInput(case.load_hull(), cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}",
-                     case.spec)
+                     case.spec, submerged_depth=depth)
 
 
 def from_mesh(hull: FloatingHull, source: str, displacement: float, cog: Sequence[float], *, fsm: float = 0.0,
@@ -145,11 +164,28 @@ def _equilibrium_values(inp: CaseInput, eq: Equilibrium) -> list[Quantity]:
     ]
 
 
+def _submerged_values(inp: CaseInput, eq: Equilibrium) -> list[Quantity]:
+    """The values of a fully submerged position: no waterplane, so BM = 0 and KM = KB."""
+    q = Quantity
+    return [
+        q("submerged", "fully submerged", True), q("draft", "depth of reference point", eq.draft, "m"),
+        q("x_ref", "reference x", inp.hull.x_ref, "m"),
+        q("heel", "heel (+ starboard down)", eq.heel, "deg"), q("trim", "trim (+ bow down)", eq.trim, "deg"),
+        q("volume", "volume", eq.volume, "m³"), q("lcb", "LCB", eq.cob[0], "m"), q("tcb", "TCB", eq.cob[1], "m"),
+        q("vcb", "VCB (KB)", eq.cob[2], "m"), q("bmt", "BMt", 0.0, "m"), q("kmt", "KMt (= KB)", eq.cob[2], "m"),
+        q("gmt", "GMt (fluid)", eq.gmt, "m"), q("gml", "GMl (fluid)", eq.gml, "m"), q("stable", "stable", eq.stable),
+        q("residual_volume", "residual volume (relative)", f"{eq.residual_volume:.1e}"),
+        q("residual_lever", "residual lever", f"{eq.residual_lever:.1e}", "m"),
+    ]
+
+
 def float_analysis(inp: CaseInput) -> tuple[Equilibrium, Document]:
     """Free-floating position of the condition, and its report."""
     c = inp.condition
-    eq = inp.hull.equilibrium(c.displacement, c.cog, density=inp.density, fsm=c.fsm)
-    sec = Section("equilibrium", "equilibrium:", values=_equilibrium_values(inp, eq))
+    eq = inp.hull.equilibrium(c.displacement, c.cog, density=inp.density, fsm=c.fsm,
+                              submerged_depth=inp.depth_option())
+    values = _submerged_values(inp, eq) if eq.submerged else _equilibrium_values(inp, eq)
+    sec = Section("equilibrium", "equilibrium:", values=values)
     if eq.note:
         sec.notes.append(f"note: {eq.note}")
     doc = _doc(f"floating position: {inp.label}  (density {inp.density:g} t/m³)", inp,
@@ -177,7 +213,8 @@ def solve_curve(inp: CaseInput, heels: np.ndarray, *, direction: str = "auto", f
     hs = curve_angles(check_angles(heels, 0.0, 180.0), sides)
     c = inp.condition
     curve = inp.hull.righting_curve(c.displacement, c.cog, heels=hs, free_trim=free_trim, density=inp.density,
-                                    fsm=c.fsm, openings=inp.openings, progress=progress)
+                                    fsm=c.fsm, openings=inp.openings, progress=progress,
+                                    submerged_depth=inp.depth_option())
     return curve, sides
 
 
@@ -209,6 +246,8 @@ def _derived_section(curve: RightingCurve, sides: tuple[int, ...]) -> Section:
                                     values=vals))
     sec.notes.append("areas: exact integrals of the not-a-knot cubic spline through the computed points.")
     sec.notes.append(f"kernel evaluations per angle: {curve.evaluations.mean():.2f} on average")
+    if curve.submerged:
+        sec.notes.append(f"note: fully submerged at every angle (B fixed, BM = 0, M on B): {SUBMERGED_NOTE}")
     return sec
 
 
@@ -226,6 +265,8 @@ def righting_analysis(inp: CaseInput, heels: np.ndarray, *, direction: str = "au
         "righting_curve", curve))
     doc.data = {"condition": c.to_dict(), "free_trim": curve.free_trim, "density": curve.density,
                 "rows": doc.table("levers").rows, "summary": [curve.summary(s) for s in sides], "caution": CAUTION}
+    if curve.submerged:
+        doc.data.update(submerged=True, note=SUBMERGED_NOTE)
     return curve, doc
 
 
@@ -242,8 +283,8 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
     wind, arms = wind_and_arms(inp.spec, inp.hull, cset, mirror=sym, where=inp.label)
     curve, sides = solve_curve(inp, heels, direction=direction, free_trim=free_trim, progress=progress)
     i0 = int(np.argmin(np.abs(curve.heel)))  # upright is always on the curve
-    upright = inp.hull.hydrostatics(float(curve.draft[i0] / curve.up[i0, 2]), heel=0.0, trim=float(curve.trim[i0]),
-                                    density=inp.density)
+    upright = None if curve.submerged else inp.hull.hydrostatics(
+        float(curve.draft[i0] / curve.up[i0, 2]), heel=0.0, trim=float(curve.trim[i0]), density=inp.density)
     rep = evaluate(curve, cset, sides=sides, hydrostatics=upright, openings=inp.openings, windage=wind,
                    heeling_arms=arms)
     keys = ["id", "side", "criterion", "unit", "bound", "required", "attained", "margin", "result", "note"]
@@ -254,7 +295,9 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
                   text_keys=["id", "side", "criterion", "bound", "required", "attained", "margin", "unit", "result",
                              "note"])
     notes = [f"note: {n}" for n in rep.notes]
-    if cset.clauses:
+    if curve.submerged:
+        notes.append(f"note: fully submerged at every angle (B fixed, BM = 0, M on B): {SUBMERGED_NOTE}")
+    if cset.clauses and upright is not None:
         notes += [f"note: {n}" for n in applicability_notes(upright.lwl, len(inp.hull.report.bodies),
                                                             clauses=cset.clauses)]
     sec = Section("results", "", tables=[table], notes=notes)
@@ -273,6 +316,8 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
     doc.data["notes"] = list(rep.notes) + [n[len("note: "):] for n in notes[len(rep.notes):]]
     if weather:
         doc.data["weather"] = weather
+    if curve.submerged:
+        doc.data.update(submerged=True, submerged_note=SUBMERGED_NOTE)
     return rep, doc
 
 

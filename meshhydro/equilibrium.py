@@ -17,11 +17,13 @@ from .frames import SEA_WATER
 from .hull import Hull
 from .hydrostatics import Hydrostatics
 from .load import FixedLoad, Load
+from . import submerged as sub
 from .solver import (
     Evaluator,
     State,
     check_load,
     find_loll,
+    is_neutral,
     load_metacentric_heights,
     newton,
     residuals,
@@ -56,14 +58,17 @@ class Equilibrium:
         Both GMt and GMl are positive at this position.
     loll : bool
         Upright was unstable (negative GM) and the vessel lolls to this angle.
-    hydrostatics : Hydrostatics
-        The particulars at this draft, heel and trim.
+    hydrostatics : Hydrostatics or None
+        The particulars at this draft, heel and trim; None when fully submerged (no waterplane).
     iterations, evaluations, residual_volume, residual_lever
         Solver report: relative volume error and the largest lever of B off the
         vertical through G [m]. A position that misses the tolerances is never returned
         (NotConvergedError is raised instead).
     note : str
-        Plain words on anything the user must know (loll, list, ...).
+        Plain words on anything the user must know (loll, list, fully submerged, ...).
+    submerged : bool
+        A neutral load (equal to the hull's whole buoyancy): fully submerged, no waterplane, BM = 0;
+        ``draft`` is then the depth of the reference point at the depth the caller chose.
     """
 
     displacement: float
@@ -84,23 +89,24 @@ class Equilibrium:
     gml: float
     stable: bool
     loll: bool
-    hydrostatics: Hydrostatics
+    hydrostatics: Hydrostatics | None
     iterations: int
     evaluations: int
     residual_volume: float
     residual_lever: float
     note: str = ""
+    submerged: bool = False
 
     def to_dict(self) -> dict[str, Any]:
         d = {k: getattr(self, k) for k in (
             "displacement", "density", "draft", "draft_fore", "draft_aft", "x_fore", "x_aft", "heel", "trim",
             "volume", "gmt", "gml", "stable", "loll", "iterations", "evaluations",
-            "residual_volume", "residual_lever", "note")}
+            "residual_volume", "residual_lever", "note", "submerged")}
         d["cob"] = self.cob.tolist()
         d["up"] = self.up.tolist()
         d["cog"] = self.cog.tolist()
         d["cog_fluid"] = self.cog_fluid.tolist()
-        d["hydrostatics"] = self.hydrostatics.to_dict()
+        d["hydrostatics"] = None if self.hydrostatics is None else self.hydrostatics.to_dict()
         return d
 
 
@@ -110,7 +116,7 @@ def draft_for_volume(hull: Hull, volume: float, *, heel: float = 0.0, trim: floa
 
 
 def solve(hull: Hull, *, displacement: float, cog: np.ndarray, density: float = SEA_WATER, fsm: float = 0.0,
-          start_heel: float = 0.0, start_trim: float = 0.0) -> Equilibrium:
+          start_heel: float = 0.0, start_trim: float = 0.0, submerged_depth: float = 0.0) -> Equilibrium:
     """Find draft, heel and trim so that buoyancy equals weight and B is under G.
 
     Parameters
@@ -124,6 +130,9 @@ def solve(hull: Hull, *, displacement: float, cog: np.ndarray, density: float = 
         Total free-surface moment; G is raised by fsm / displacement.
     start_heel, start_trim : float [deg]
         Starting attitude (default upright, level).
+    submerged_depth : float [m]
+        For a load equal to the hull's whole buoyancy (fully submerged, neutral at any depth): the
+        depth of the body's highest point below the surface (default 0, just under it).
 
     Raises
     ------
@@ -131,7 +140,7 @@ def solve(hull: Hull, *, displacement: float, cog: np.ndarray, density: float = 
     """
     check_load(hull, displacement, density)
     return solve_load(hull, FixedLoad(displacement, cog, fsm), density=density, start_heel=start_heel,
-                      start_trim=start_trim)
+                      start_trim=start_trim, submerged_depth=submerged_depth)
 
 
 def _loll(ev: Evaluator, v0: float, load: Load, upright: State) -> tuple[State, str]:
@@ -146,10 +155,13 @@ def _loll(ev: Evaluator, v0: float, load: Load, upright: State) -> tuple[State, 
 
 
 def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel: float = 0.0,
-               start_trim: float = 0.0) -> Equilibrium:
+               start_trim: float = 0.0, submerged_depth: float = 0.0) -> Equilibrium:
     """Equilibrium for any :class:`~meshhydro.load.Load` (see :func:`solve`)."""
     rho, v0 = check_load(hull, load.displacement, density)
     ev = Evaluator(hull)
+    if is_neutral(hull, v0):
+        st, note = sub.equilibrium_state(ev, load, submerged_depth, hull.total_volume * rho)
+        return _result(hull, ev, load, st, rho, v0, 0, False, note, submerged=True)
     st = solve_volume(ev, v0, start_heel, start_trim)
     res = newton(ev, v0, load, st, free_heel=True, free_trim=True)
     if not res.converged:
@@ -168,23 +180,25 @@ def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel
 
 
 def _result(hull: Hull, ev: Evaluator, load: Load, st: State, rho: float, v0: float, iterations: int,
-            loll: bool, note: str) -> Equilibrium:
+            loll: bool, note: str, submerged: bool = False) -> Equilibrium:
     g = load.centre(st.heel, st.trim)
-    gmt, gml = load_metacentric_heights(st, load)
+    gmt, gml = sub.metacentric_heights(st, load) if submerged else load_metacentric_heights(st, load)
     r = residuals(st, v0, load, ev.L)
     n = st.cut.normal
     xa, xf = float(st.cut.waterline_x[0]), float(st.cut.waterline_x[1])
+    if submerged:  # no waterline: the ends of the hull
+        xa, xf = float(hull.bounds[0][0]), float(hull.bounds[1][0])
 
     def draft_at(x: float) -> float:  # z of the waterplane on the centreline at x
         return float((st.depth + n[0] * (hull.x_ref - x)) / n[2])
 
     solid = np.array(getattr(load, "cog", g), dtype=float)
-    hs = hull.hydrostatics(st.draft, heel=st.heel, trim=st.trim, density=rho)
+    hs = None if submerged else hull.hydrostatics(st.draft, heel=st.heel, trim=st.trim, density=rho)
     return Equilibrium(
         displacement=float(load.displacement), density=rho, draft=float(st.draft), draft_fore=draft_at(xf),
         draft_aft=draft_at(xa), x_fore=xf, x_aft=xa, heel=st.heel, trim=st.trim, volume=st.cut.volume,
         cob=st.cut.centroid.copy(), up=n.copy(), cog=solid, cog_fluid=np.array(g, dtype=float),
         gmt=float(gmt), gml=float(gml), stable=bool(gmt > 0 and gml > 0), loll=loll, hydrostatics=hs,
         iterations=iterations, evaluations=ev.count, residual_volume=float(abs(r[0])),
-        residual_lever=float(max(abs(r[1]), abs(r[2])) * ev.L), note=note,
+        residual_lever=float(max(abs(r[1]), abs(r[2])) * ev.L), note=note, submerged=submerged,
     )

@@ -23,6 +23,7 @@ from .document import Figure
 from .errors import InputError
 from .figures_plot import compare_figure, convergence_figure, hydrostatics_figure, section_figure
 from .figures_common import check_keys, new_figure, side_style
+from .figures_submergence import submergence_figure
 from .output import save_atomic
 
 #: One radian in degrees: the GM tangent reaches GM at this heel.
@@ -254,6 +255,12 @@ def convergence_plot(data: Mapping[str, Any], *, path: str | None = None) -> str
     return finish(convergence_figure(data), path)
 
 
+def submergence_plot(data: Mapping[str, Any], *, path: str | None = None) -> str:
+    """KB, KMt (the KG limit), BMt, waterplane and GMt over a ballast-down passage (SVG); see
+    :mod:`meshhydro.figures_submergence`."""
+    return finish(submergence_figure(data), path)
+
+
 #: Figure.view name -> drawing function (data, *, path) -> SVG text.
 VIEWS: dict[str, Callable[..., str]] = {
     "gz_curve": gz_curve,
@@ -261,6 +268,7 @@ VIEWS: dict[str, Callable[..., str]] = {
     "section_plot": section_plot,
     "compare_overlay": compare_overlay,
     "convergence": convergence_plot,
+    "submergence": submergence_plot,
 }
 
 

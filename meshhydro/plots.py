@@ -194,6 +194,10 @@ def section_view(hull: Hull | Sequence[Hull], traces: Sequence[Any], path: str, 
     ax.set_ylabel("z above baseline [m]")
     ax.grid(True, alpha=0.3)
     ax.legend(fontsize=7, loc="upper right")
+    notes = [getattr(t, "note", "") for t in traces]
+    if any(notes):
+        ax.text(0.02, 0.02, "\n".join(n for n in notes if n), transform=ax.transAxes, fontsize=8, va="bottom",
+                ha="left", color="0.15", bbox={"facecolor": "white", "alpha": 0.8, "lw": 0})
     ax.set_title("Heel sweep: trace of B and locus of the metacentre (hull frame)", fontsize=10)
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
@@ -227,6 +231,11 @@ def convergence_plot(rows: Sequence[dict[str, Any]], path: str, *, title: str = 
 
 def draw(figure: Any, path: str) -> None:
     """Draw a document :class:`~meshhydro.document.Figure` to a PNG at ``path`` with the view it names."""
+    if figure.view == "submergence":  # drawn by the report-grade view
+        from .figures import submergence_plot
+
+        submergence_plot(figure.data, path=path)
+        return
     from .plots_limits import criteria_gz, kg_limits
 
     views = {"righting_curve": righting_curve, "cross_curves": cross_curves, "hydrostatic_curves": hydrostatic_curves,

@@ -156,6 +156,8 @@ class Scene:
         else:
             p.remove_actor("M", render=False)
             mtext = f"  (M off view: BM {t.bm[k]:.2f} m)"
+        if getattr(t, "note", ""):
+            mtext += f"\n{t.note}"
         Z = np.array([G[0], B[1], G[2]])
         p.add_mesh(pv.Line(G, Z), color=COLOURS["lever"], line_width=6, name="lever", render=False)
         ra = self.r_axis

@@ -133,17 +133,29 @@ def converged(r: np.ndarray, rows: Sequence[int]) -> bool:
 
 
 def check_load(hull: Hull, displacement: float, density: float) -> tuple[float, float]:
-    """(density [t/m³], volume to displace [m³]) after checking that the closed hull can carry the load."""
+    """(density [t/m³], volume to displace [m³]) after checking that the closed hull can carry the load.
+
+    A load up to the hull's whole buoyancy (within ``tol.NEUTRAL_BUOYANCY``) is accepted: see
+    :func:`is_neutral` for the fully submerged (neutral) case. A heavier load raises CannotFloatError
+    naming the missing buoyancy in tonnes.
+    """
     rho = check_density(density)
     d = float(displacement)
     if not math.isfinite(d) or d <= 0:
         raise InputError(f"displacement must be a positive number of tonnes, got {displacement!r}")
     v0 = d / rho
-    if hull.report.closed and v0 >= hull.total_volume * (1 - tol.FULLY_SUBMERGED):
+    if hull.report.closed and v0 > hull.total_volume * (1 + tol.NEUTRAL_BUOYANCY):
+        most = hull.total_volume * rho
         raise CannotFloatError(
-            f"the load needs {d:.6g} t but the closed hull displaces at most {hull.total_volume * rho:.6g} t "
-            f"fully submerged (ρ = {rho:g} t/m³): it cannot float")
+            f"the load needs {d:.6g} t but the closed hull displaces at most {most:.6g} t fully submerged "
+            f"(ρ = {rho:g} t/m³): it sinks, {d - most:.6g} t of buoyancy missing")
     return rho, v0
+
+
+def is_neutral(hull: Hull, v0: float) -> bool:
+    """True when a load of volume ``v0`` [m³] (checked by :func:`check_load`) equals the closed hull's
+    whole buoyancy within ``tol.NEUTRAL_BUOYANCY``: it floats fully submerged, at any depth."""
+    return bool(hull.report.closed and v0 >= hull.total_volume * (1 - tol.NEUTRAL_BUOYANCY))
 
 
 def metacentric_heights(st: State, g: np.ndarray, dg: np.ndarray | None = None) -> tuple[float, float]:

@@ -24,12 +24,14 @@ from . import tolerances as tol
 from .errors import InputError
 from .frames import SEA_WATER, transverse_direction
 from .hull import Hull
+from . import submerged as sub
 from .load import FixedLoad, Load
 from .solver import (
     Evaluator,
     State,
     check_load,
     freeboard,
+    is_neutral,
     load_metacentric_heights,
     solve_volume,
     step_angles,
@@ -71,6 +73,9 @@ class RightingCurve:
         Least height of the deck edge above the water at each angle.
     openings : dict name -> (n,) [m]
         Height of each opening above the water at each angle.
+    submerged : bool
+        A neutral load, fully submerged at every angle: no waterplane (``bm`` is 0, M on B), B fixed
+        in the hull, weight stability only (:data:`meshhydro.submerged.NOTE`).
     """
 
     heel: np.ndarray
@@ -91,6 +96,7 @@ class RightingCurve:
     gm_upright: float | None
     deck_freeboard: np.ndarray | None
     openings: dict[str, np.ndarray] = field(default_factory=dict)
+    submerged: bool = False
 
     # ------------------------------------------------------------ interpolation
     def interpolant(self) -> Any:
@@ -171,6 +177,9 @@ class RightingCurve:
             if y[k] > 0 >= y[k + 1]:
                 rr = _roots(sp, sign * x[k], sign * x[k + 1])
                 return float(abs(rr[0])) if rr else float(x[k] + (x[k + 1] - x[k]) * y[k] / (y[k] - y[k + 1]))
+        if len(x) > 1 and x[-1] >= 180.0 - tol.ANGLE_SLACK and y[-2] > 0 and x[-2] > amax \
+                and abs(y[-1]) <= tol.GZ_ROUNDING * float(np.max(np.abs(self.gz))):
+            return 180.0  # GZ vanishes at 180° (inverted, G and B on the centreline): rounding left it tiny
         return None
 
     def equilibrium_angle(self, sign: int = 1) -> float:
@@ -232,6 +241,8 @@ class RightingCurve:
         for a, b in ((0, 30), (0, 40), (30, 40)):
             if top >= b:
                 out[f"area_{a}_{b}"] = self.area(sign * a, sign * b)
+        if self.submerged:
+            out["note"] = sub.NOTE
         return out
 
     def rows(self) -> list[dict[str, Any]]:
@@ -266,7 +277,8 @@ class HasPoint(Protocol):
 
 def righting_curve(hull: Hull, *, displacement: float, cog: np.ndarray, heels: Sequence[float] | None = None,
                    free_trim: bool = True, density: float = SEA_WATER, fsm: float = 0.0,
-                   openings: Sequence[HasPoint] = (), progress: Callable[[], object] | None = None) -> RightingCurve:
+                   openings: Sequence[HasPoint] = (), progress: Callable[[], object] | None = None,
+                   submerged_depth: float = 0.0) -> RightingCurve:
     """GZ curve at the given heels [deg] (default 0 to 180 in 1° steps).
 
     Parameters
@@ -285,10 +297,13 @@ def righting_curve(hull: Hull, *, displacement: float, cog: np.ndarray, heels: S
         Points whose immersion gives the downflooding angle.
     progress : callable, optional
         Called once per solved angle.
+    submerged_depth : float [m]
+        For a load equal to the hull's whole buoyancy (fully submerged): the depth of the body's
+        highest point below the surface at every angle (default 0, just under it).
     """
     check_load(hull, displacement, density)
     return curve_for_load(hull, FixedLoad(displacement, cog, fsm), heels=heels, free_trim=free_trim,
-                          density=density, openings=openings, progress=progress)
+                          density=density, openings=openings, progress=progress, submerged_depth=submerged_depth)
 
 
 def _heel_set(heels: Sequence[float] | None) -> np.ndarray:
@@ -300,11 +315,13 @@ def _heel_set(heels: Sequence[float] | None) -> np.ndarray:
 
 def curve_for_load(hull: Hull, load: Load, *, heels: Sequence[float] | None = None, free_trim: bool = True,
                    density: float = SEA_WATER, openings: Sequence[HasPoint] = (),
-                   progress: Callable[[], object] | None = None) -> RightingCurve:
+                   progress: Callable[[], object] | None = None, submerged_depth: float = 0.0) -> RightingCurve:
     """GZ curve for any :class:`~meshhydro.load.Load` (see :func:`righting_curve`); G is taken at each angle."""
     rho, v0 = check_load(hull, load.displacement, density)
     hs = _heel_set(heels)
     ev = Evaluator(hull)
+    if is_neutral(hull, v0):
+        return _submerged_curve(hull, ev, load, hs, rho, free_trim, openings, progress, submerged_depth)
     up0 = upright_free_trim(ev, v0, load)
     start_cost = ev.count
     solved: dict[float, tuple[State, int]] = {}
@@ -320,8 +337,22 @@ def curve_for_load(hull: Hull, load: Load, *, heels: Sequence[float] | None = No
                      openings, up0 if abs(k0) < tol.UPRIGHT else None)
 
 
+def _submerged_curve(hull: Hull, ev: Evaluator, load: Load, hs: np.ndarray, rho: float, free_trim: bool,
+                     openings: Sequence[HasPoint], progress: Callable[[], object] | None,
+                     clearance: float) -> RightingCurve:
+    """The curve of a neutral load: fully submerged at every angle (see :mod:`meshhydro.submerged`)."""
+    up0, solved = sub.curve_states(ev, load, hs, clearance, free_trim)
+    if progress is not None:
+        for _ in hs:
+            progress()
+    k0 = float(hs[np.argmin(np.abs(hs))])
+    return _assemble(hull, ev, load, hs, [st for st, _ in solved], np.array([n for _, n in solved]), rho,
+                     free_trim, openings, up0 if abs(k0) < tol.UPRIGHT else None, submerged=True)
+
+
 def _assemble(hull: Hull, ev: Evaluator, load: Load, hs: np.ndarray, states: list[State], evals: np.ndarray,
-              rho: float, free_trim: bool, openings: Sequence[HasPoint], upright: State | None) -> RightingCurve:
+              rho: float, free_trim: bool, openings: Sequence[HasPoint], upright: State | None,
+              submerged: bool = False) -> RightingCurve:
     gs = np.array([load.centre(s.heel, s.trim) for s in states])
     gz = np.array([(g - s.cut.centroid) @ transverse_direction(s.heel) for g, s in zip(gs, states, strict=True)])
     kn = np.array([-(s.cut.centroid @ transverse_direction(s.heel)) for s in states])
@@ -333,15 +364,16 @@ def _assemble(hull: Hull, ev: Evaluator, load: Load, hs: np.ndarray, states: lis
         ops[o.name] = np.array([freeboard(s, ev.K, pt)[0] for s in states])
     gm_up = None
     if upright is not None:
-        gm_up = float(load_metacentric_heights(upright, load)[0])
+        gm_up = float((sub.metacentric_heights if submerged else load_metacentric_heights)(upright, load)[0])
     return RightingCurve(
         heel=hs, gz=gz, kn=kn, draft=np.array([s.depth for s in states]), trim=np.array([s.trim for s in states]),
         cob=np.array([s.cut.centroid for s in states]), up=np.array([s.cut.normal for s in states]),
         volume=np.array([s.cut.volume for s in states]),
-        waterplane_area=np.array([s.cut.waterplane_area for s in states]),
-        bm=np.array([s.cut.inertia_t / s.cut.volume for s in states]), evaluations=evals,
+        waterplane_area=np.zeros(len(states)) if submerged else np.array([s.cut.waterplane_area for s in states]),
+        bm=np.zeros(len(states)) if submerged else np.array([s.cut.inertia_t / s.cut.volume for s in states]),
+        evaluations=evals,
         displacement=float(load.displacement), density=rho, cog=np.array(gs[0], dtype=float),
-        free_trim=bool(free_trim), gm_upright=gm_up, deck_freeboard=deck_fb, openings=ops,
+        free_trim=bool(free_trim), gm_upright=gm_up, deck_freeboard=deck_fb, openings=ops, submerged=submerged,
     )
 
 
@@ -369,7 +401,9 @@ def cross_curves(hull: Hull, displacements: Sequence[float], heels: Sequence[flo
         rho, v0 = check_load(hull, d, density)
         ev = Evaluator(hull)
         x = lcg
-        if x is None:
+        if x is None and is_neutral(hull, v0):  # fully submerged: B is the hull's centroid
+            x = float(hull.total_centroid[0])
+        elif x is None:
             x = float(solve_volume(ev, v0, 0.0, 0.0).cut.centroid[0])
         lcgs[i] = x
         c = righting_curve(hull, displacement=d, cog=np.array([x, 0.0, 0.0]), heels=hs, density=density,

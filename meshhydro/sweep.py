@@ -10,6 +10,10 @@ longitudinal moment balanced). Per angle the trace holds, in the hull frame:
   ``BM_φ = B² / (12 T cos³ φ)``);
 * G (free-surface corrected), GZ, draft and trim.
 
+A fully submerged body (a load equal to the hull's whole buoyancy) has no waterplane: B stays
+fixed in the hull and M lies on B at every angle (BM = 0); the trace carries the note
+"no waterplane: weight stability only".
+
 :func:`write_sweep` renders frames, the section view, a contact sheet and a GIF into a
 folder. It builds everything in a temporary folder beside the target and swaps it in
 only when complete; a target that holds anything but an earlier sweep is refused.
@@ -29,6 +33,7 @@ from .errors import InputError
 from .frames import SEA_WATER
 from .hull import Hull, vec3
 from .stability import RightingCurve, righting_curve
+from .submerged import NOTE as SUBMERGED_NOTE
 from .output import to_json
 
 MARKER = ".meshhydro-sweep"
@@ -70,14 +75,21 @@ class Trace:
                          "G": self.cog.tolist(), "up": self.up[k].tolist(), "bm": float(self.bm[k])})
         return {"label": self.label, "displacement": self.displacement, "density": self.density,
                 "frame": "hull frame: x forward, y to port, z up [m]; heel positive starboard down",
-                "angles": rows}
+                "submerged": bool(self.curve.submerged), "note": self.note, "angles": rows}
+
+    @property
+    def note(self) -> str:
+        """Plain words for a fully submerged sweep (B fixed, M on B), else empty."""
+        return f"fully submerged: B fixed, M on B; {SUBMERGED_NOTE}" if self.curve.submerged else ""
 
 
 def heel_trace(hull: Hull, displacement: float, cog: Sequence[float], heels: Sequence[float], *,
-               density: float = SEA_WATER, fsm: float = 0.0, label: str = "", progress: Any = None) -> Trace:
-    """Free-trim positions over ``heels`` [deg] with B, M and G in the hull frame."""
+               density: float = SEA_WATER, fsm: float = 0.0, label: str = "", progress: Any = None,
+               submerged_depth: float = 0.0) -> Trace:
+    """Free-trim positions over ``heels`` [deg] with B, M and G in the hull frame (``submerged_depth`` [m]:
+    see :func:`meshhydro.stability.righting_curve`)."""
     return Trace(righting_curve(hull, displacement=displacement, cog=vec3(cog, "cog"), heels=heels, density=density,
-                                fsm=fsm, progress=progress), label)
+                                fsm=fsm, progress=progress, submerged_depth=submerged_depth), label)
 
 
 def _prepare_target(out: str) -> str:

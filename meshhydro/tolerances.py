@@ -13,6 +13,9 @@ LEVER_TOL = 1e-8
 VOLUME_ACCEPT = 1e-9
 #: A load needing this fraction of the closed hull's volume or more cannot float.
 FULLY_SUBMERGED = 1e-12
+#: A load within this fraction of the closed hull's whole buoyancy is neutral: it floats fully submerged
+#: (about what a displacement given to 7 significant digits can match; our own choice). Heavier sinks.
+NEUTRAL_BUOYANCY = 1e-6
 #: The volume bracket is closed when narrower than this fraction of max(L, 1 m) (rim bisection).
 RIM_BRACKET = 1e-12
 #: The volume bracket is closed when narrower than this fraction of max(L, 1 m).
@@ -45,6 +48,10 @@ SAME_ANGLE = 1e-12
 LOLL_STEP = 1.0
 LOLL_LAST = 90.0
 LOLL_TIE = 1e-6
+#: Fixed-point iterations for a submerged attitude when G moves with it (a fluid load), and their
+#: tolerance on the upward vertical.
+SUBMERGED_MAX_ITER = 50
+SUBMERGED_TOL = 1e-13
 #: Guard against division by an empty volume [m³].
 TINY_VOLUME = 1e-300
 
@@ -55,6 +62,8 @@ ANGLE_SLACK = 1e-9
 ROOT_SLACK = 1e-12
 #: A criterion is met when attained >= minimum - this.
 CRITERION_SLACK = 1e-12
+#: GZ at 180° within this share of the curve's largest |GZ| is rounding noise of an exact zero (vanishing at 180°).
+GZ_ROUNDING = 1e-9
 #: A heel counts as upright when its magnitude is below this [deg].
 UPRIGHT = 1e-12
 
@@ -65,5 +74,7 @@ TINY_LENGTH = 1e-9
 SYMMETRY = 1e-6
 #: A load is on the centreline when |TCG| is below this [m].
 CENTRELINE = 1e-12
+#: Submergence sequence: a waterplane smaller than this share of the largest in the sequence is "small".
+SMALL_WATERPLANE = 0.1
 #: A listed equilibrium is reported when |heel| exceeds this [deg].
 LIST_NOTE = 0.01

@@ -1,6 +1,6 @@
 """Command-line interface: parse, call the analyses, render their documents, map errors to exit codes.
 
-One module per topic (``mesh``, ``stability``, ``sweep``, ``sections``), each with a ``register``,
+One module per topic (``mesh``, ``stability``, ``sweep``, ``sections``, ``submergence``), each with a ``register``,
 and ``common`` for shared options, loading and output; this module builds the parser and runs ``main``.
 
 Exit codes: 0 success; 1 a criteria check failed (``criteria`` only); 2 bad input;
@@ -22,6 +22,7 @@ from . import mesh as cli_mesh
 from . import sections as cli_sections
 from . import stability as cli_stability
 from . import study as cli_study
+from . import submergence as cli_submergence
 from . import sweep as cli_sweep
 
 # ---------------------------------------------------------------------------- main
@@ -42,6 +43,7 @@ def build_parser() -> argparse.ArgumentParser:
     cli_sections.register(sub)
     cli_study.register(sub)
     cli_limits.register(sub)
+    cli_submergence.register(sub)
     return p
 
 

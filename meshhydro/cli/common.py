@@ -5,6 +5,7 @@ Only the CLI parses option text (ranges, vectors, sizes) and names options in me
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import math
 import sys
 from typing import Sequence
@@ -119,6 +120,9 @@ def source_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--fsm", type=float, default=0.0, help="free-surface moment [t·m] (raises G by FSM/Δ)")
     g.add_argument("--opening", action="append", default=[], metavar="NAME=X,Y,Z",
                    help="an opening for the downflooding angle (repeatable)")
+    p.add_argument("--submerged-depth", type=float, metavar="M",
+                   help="for a load equal to the hull's whole buoyancy (fully submerged, neutral): depth of the "
+                        "body's top below the surface [m] (default 0, just under it)")
     water_args(p)
     mesh_args(p)
 
@@ -157,6 +161,13 @@ def is_case(path: str) -> bool:
 
 def load_source(args: argparse.Namespace) -> CaseInput:
     """The hull and condition from a case file, or from a mesh with --displacement and --cog."""
+    inp = _load_source(args)
+    if getattr(args, "submerged_depth", None) is not None:
+        inp = dataclasses.replace(inp, submerged_depth=args.submerged_depth)
+    return inp
+
+
+def _load_source(args: argparse.Namespace) -> CaseInput:
     if is_case(args.source):
         if args.displacement is not None or args.cog:
             raise InputError("give either a case file or --displacement/--cog with a mesh, not both")

@@ -20,7 +20,7 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     c = src.condition
     bar = progress(args, len(heels), "solving")
     tr = heel_trace(src.hull, c.displacement, c.cog, heels, density=src.density, fsm=c.fsm, label=src.label,
-                    progress=bar)
+                    progress=bar, submerged_depth=src.depth_option())
     bar.close()
     n_frames = len(tr.heel) if args.view in ("3d", "both") else 0
     bar = progress(args, max(n_frames, 1), "rendering")
@@ -34,6 +34,8 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     for k in range(len(tr.heel)):
         print(f"  {tr.heel[k]:7.2f}°  GZ {tr.gz[k]:+.4f} m  B ({tr.cob[k][1]:+.4f}, {tr.cob[k][2]:.4f}) m  "
               f"BM {tr.bm[k]:.4f} m")
+    if tr.note:
+        print(f"note: {tr.note}")
     print(f"wrote {args.out}: {frames} frames, " + ", ".join(others))
     return 0
 

@@ -117,6 +117,9 @@ class ConditionSpec(SchemaTable):
     volumes: dict[Text, NonNeg] = Field(default_factory=dict, description="tank name -> fluid volume [m³]")
     flooded: list[Text] = Field(default_factory=list, description="names of flooded compartments")
     fluid: Optional[Literal["exact", "fsm"]] = Field(None, description="tank fluid: shifting surface or FSM")
+    submerged_depth: Optional[NonNeg] = Field(
+        None, description="for a load equal to the hull's whole buoyancy (fully submerged): depth of the "
+                          "body's top below the surface [m]; default 0, just under it")
 
     @model_validator(mode="after")
     def _check(self) -> "ConditionSpec":
