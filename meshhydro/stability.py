@@ -71,6 +71,8 @@ class RightingCurve:
         Least height of the deck edge above the water at each angle.
     openings : dict name -> (n,) [m]
         Height of each opening above the water at each angle.
+    centres : (n, 3) [m] or None
+        G at each angle (it moves with the attitude when tank fluid shifts).
     """
 
     heel: np.ndarray
@@ -91,6 +93,11 @@ class RightingCurve:
     gm_upright: float | None
     deck_freeboard: np.ndarray | None
     openings: dict[str, np.ndarray] = field(default_factory=dict)
+    centres: np.ndarray | None = None
+
+    def centre_at(self, k: int) -> np.ndarray:
+        """G (3,) [m] at the k-th angle (``cog`` when the curve has no per-angle centres)."""
+        return self.cog if self.centres is None else self.centres[k]
 
     # ------------------------------------------------------------ interpolation
     def interpolant(self) -> Any:
@@ -300,11 +307,15 @@ def _heel_set(heels: Sequence[float] | None) -> np.ndarray:
 
 def curve_for_load(hull: Hull, load: Load, *, heels: Sequence[float] | None = None, free_trim: bool = True,
                    density: float = SEA_WATER, openings: Sequence[HasPoint] = (),
-                   progress: Callable[[], object] | None = None) -> RightingCurve:
-    """GZ curve for any :class:`~meshhydro.load.Load` (see :func:`righting_curve`); G is taken at each angle."""
+                   progress: Callable[[], object] | None = None, compartments: Sequence[Any] = ()) -> RightingCurve:
+    """GZ curve for any :class:`~meshhydro.load.Load` (see :func:`righting_curve`); G is taken at each angle.
+
+    ``compartments`` (:class:`meshhydro.damage.Compartment`) are flooded, open to the sea at every
+    angle (lost buoyancy): the curve is the damaged one, the displacement the intact ship's.
+    """
     rho, v0 = check_load(hull, load.displacement, density)
     hs = _heel_set(heels)
-    ev = Evaluator(hull)
+    ev = Evaluator(hull, compartments)
     up0 = upright_free_trim(ev, v0, load)
     start_cost = ev.count
     solved: dict[float, tuple[State, int]] = {}
@@ -341,7 +352,7 @@ def _assemble(hull: Hull, ev: Evaluator, load: Load, hs: np.ndarray, states: lis
         waterplane_area=np.array([s.cut.waterplane_area for s in states]),
         bm=np.array([s.cut.inertia_t / s.cut.volume for s in states]), evaluations=evals,
         displacement=float(load.displacement), density=rho, cog=np.array(gs[0], dtype=float),
-        free_trim=bool(free_trim), gm_upright=gm_up, deck_freeboard=deck_fb, openings=ops,
+        free_trim=bool(free_trim), gm_upright=gm_up, deck_freeboard=deck_fb, openings=ops, centres=gs,
     )
 
 

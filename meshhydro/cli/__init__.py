@@ -21,6 +21,7 @@ from . import mesh as cli_mesh
 from . import sections as cli_sections
 from . import stability as cli_stability
 from . import sweep as cli_sweep
+from . import tanks as cli_tanks
 
 # ---------------------------------------------------------------------------- main
 
@@ -38,6 +39,7 @@ def build_parser() -> argparse.ArgumentParser:
     cli_stability.register(sub)
     cli_sweep.register(sub)
     cli_sections.register(sub)
+    cli_tanks.register(sub)
     return p
 
 
