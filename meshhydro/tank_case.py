@@ -15,6 +15,7 @@ Hull frame (x forward, y to port, z up), m, t, t/m³.
 from __future__ import annotations
 
 from dataclasses import replace
+from types import SimpleNamespace
 from typing import Any, Sequence
 
 import numpy as np
@@ -31,10 +32,8 @@ def _mesh_opts(case: Case) -> dict[str, Any]:
 
 
 def _hull_mesh(hull: Any) -> Any:
-    class _MD:  # the hull's checked arrays in the shape tank_from_body expects
-        vertices = np.asarray(hull.vertices)
-        faces = np.asarray(hull.faces)
-    return _MD
+    """The hull's checked arrays (``vertices``, ``faces``) in the shape :func:`tank_from_body` takes."""
+    return SimpleNamespace(vertices=np.asarray(hull.vertices), faces=np.asarray(hull.faces))
 
 
 def build_tanks(case: Case, hull: Any) -> tuple[Tank, ...]:

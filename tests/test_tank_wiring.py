@@ -264,3 +264,28 @@ def test_bad_tank_inputs(case_file, tmp_path, capsys):
     bad.write_text(text.replace("flooded = [", 'flooded = ["nothing", '))
     assert main(["float", str(bad), "--condition", "damaged"]) == 2
     assert "nothing" in capsys.readouterr().err
+
+
+def test_tank_permeability_and_unresolved_condition(case_file, tmp_path, capsys):
+    from meshhydro.loading import read_case
+
+    # a condition read with fills is not a load until its tanks are joined (never a wrong displacement)
+    with pytest.raises(Exception, match="not resolved"):
+        read_case(case_file).condition("exact").load()
+    bad = tmp_path / "perm.toml"
+    bad.write_text(open(case_file).read().replace('name = "wing"\n', 'name = "wing"\npermeability = 0.9\n'))
+    assert main(["float", str(bad)]) == 2
+    assert "permeability 0.9 is not supported" in capsys.readouterr().err
+
+
+# the heel sweep sees the moving G: its lever at each angle is the curve's GZ (same G as the solver's)
+def test_sweep_trace_moves_g(box_hull):
+    from meshhydro.frames import transverse_direction
+    from meshhydro.sweep import heel_trace
+
+    _, _, exact, _ = _loads(0.5)
+    tr = heel_trace(box_hull, 0.0, (0, 0, 0), [0.0, 10.0, 20.0], load=exact)
+    gs = [np.array(r["G"]) for r in tr.to_dict()["angles"]]
+    assert gs[2][1] < gs[1][1] < gs[0][1] + 1e-12  # the fluid runs to starboard (-y) as the heel grows
+    for k, h in enumerate(tr.heel):
+        assert (gs[k] - tr.cob[k]) @ transverse_direction(h) == pytest.approx(tr.gz[k], abs=1e-12)
