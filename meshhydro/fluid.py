@@ -15,7 +15,7 @@ from typing import Any, Mapping, Sequence
 import numpy as np
 
 from .errors import InputError
-from .tanks import UP_UPRIGHT, Tank, TankState, tank_state, unit_vertical
+from .tanks import UP_UPRIGHT, Tank, TankState, checked_state, tank_state, unit_vertical
 
 
 @dataclass(frozen=True)
@@ -102,7 +102,7 @@ class FluidLoad:
         for i, (t, v) in enumerate(zip(self.tanks, self.volumes)):
             w = self._warm[i]
             tilt = 0.0 if w is None else _angle(w.normal, n)
-            st = tank_state(t, n, v, guess=None if w is None else w.guess(n, tilt))
+            st = checked_state(t, n, v, None if w is None else w.guess(n, tilt))  # n, v checked already
             if st.cuts:
                 self._warm[i] = _Warm.after(w, st, tilt)
             self.cuts += st.cuts

@@ -422,6 +422,11 @@ def tank_state(tank: Tank, up: Any, volume: float, *, guess: np.ndarray | None =
     vol = _finite(volume, f"tank {tank.name!r}: volume")
     if not 0.0 <= vol <= tank.capacity:
         raise InputError(f"tank {tank.name!r}: volume {vol:.6g} m³ is outside 0..{tank.capacity:.6g} m³")
+    return checked_state(tank, n, vol, guess)
+
+
+def checked_state(tank: Tank, n: np.ndarray, vol: float, guess: np.ndarray | None) -> TankState:
+    """:func:`tank_state` for a unit vertical ``n`` (3,) and a volume already checked to lie in 0..capacity."""
     if vol == 0.0 or vol == tank.capacity:
         full = vol == tank.capacity
         lp = _extreme(tank, n, top=full)
