@@ -20,9 +20,10 @@ import numpy as np
 from . import tolerances as tol
 from .applicability import applicability_notes
 from .case_wind import WEATHER_VALUES, weather_values, wind_and_arms
+from . import analysis_tanks as tk
 from .criteria import CAUTION, CriteriaSet, Report, evaluate
 from .document import Column, Document, Figure, Quantity, Section, Table
-from .equilibrium import Equilibrium
+from .equilibrium import Equilibrium, solve_load
 from .errors import InputError
 from .frames import SEA_WATER
 from .hydrostatics import FIELDS, UNITS
@@ -32,6 +33,8 @@ from .solver import check_load, is_neutral
 from .stability import CrossCurves, RightingCurve, cross_curves
 from .submerged import NOTE as SUBMERGED_NOTE
 from .submerged import check_clearance
+from .stability import CrossCurves, RightingCurve, cross_curves, curve_for_load
+from .tank_case import resolve_condition
 from .vessel import FloatingHull
 
 Progress = Callable[[], object] | None
@@ -73,12 +76,13 @@ class CaseInput:
 def from_case(path: str, condition_name: str | None = None, *, density: float | None = None) -> CaseInput:
     """A case file's hull and condition (the first unless named); ``density`` overrides the file's [t/m³]."""
     case = read_case(path)
-    cond = case.condition(condition_name)
+    hull = case.load_hull()
+    cond = resolve_condition(case, hull, condition_name)
     rho = case.density if density is None else float(density)
     specs = [c for c in getattr(case.spec, "conditions", ()) if c.name == cond.name]
     depth = specs[0].submerged_depth if specs else None
-    return CaseInput(case.load_hull(), cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}",
-                     case.spec, submerged_depth=depth)
+    return CaseInput(hull, cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}", case.spec,
+                     submerged_depth=depth)
 
 
 def from_mesh(hull: FloatingHull, source: str, displacement: float, cog: Sequence[float], *, fsm: float = 0.0,
@@ -104,7 +108,9 @@ def choose_sides(hull: FloatingHull, cond: Condition, direction: str = "auto") -
     """Heel sides (+1 starboard down, -1 port down): ``auto`` is starboard alone when hull and load
     are port-starboard symmetric, both otherwise."""
     if direction == "auto":
-        direction = "starboard" if hull.is_symmetric and abs(cond.cog[1]) < tol.CENTRELINE else "both"
+        # tanks and flooded compartments may act unevenly on the two sides: both sides
+        plain = not cond.tanks and not cond.flooded
+        direction = "starboard" if plain and hull.is_symmetric and abs(cond.cog[1]) < tol.CENTRELINE else "both"
     if direction not in SIDES:
         raise InputError(f"direction must be auto, both, starboard or port, got {direction!r}")
     return SIDES[direction]
@@ -182,15 +188,28 @@ def _submerged_values(inp: CaseInput, eq: Equilibrium) -> list[Quantity]:
 def float_analysis(inp: CaseInput) -> tuple[Equilibrium, Document]:
     """Free-floating position of the condition, and its report."""
     c = inp.condition
-    eq = inp.hull.equilibrium(c.displacement, c.cog, density=inp.density, fsm=c.fsm,
-                              submerged_depth=inp.depth_option())
+    eq = solve_load(inp.hull, c.load(), density=inp.density, compartments=c.flooded,
+                    submerged_depth=inp.depth_option())
     values = _submerged_values(inp, eq) if eq.submerged else _equilibrium_values(inp, eq)
-    sec = Section("equilibrium", "equilibrium:", values=values)
+    sec = Section("equilibrium", "equilibrium:" if not c.flooded else "equilibrium (damaged):",
+                  values=values, notes=tk.method_note(c))
     if eq.note:
         sec.notes.append(f"note: {eq.note}")
-    doc = _doc(f"floating position: {inp.label}  (density {inp.density:g} t/m³)", inp,
-               sections=[condition_section(c), sec], primary="equilibrium")
-    doc.data = {"condition": c.to_dict(), "equilibrium": eq.to_dict(), "caution": CAUTION}
+    secs = [condition_section(c), sec]
+    if c.tanks or c.items:
+        secs.insert(1, tk.weight_section(c))
+    data = {"condition": c.to_dict(), "equilibrium": eq.to_dict(), "caution": CAUTION}
+    if c.tanks:
+        data["fluid"] = c.fluid
+        data["weight_groups"] = secs[1].tables[0].rows
+    if c.flooded:
+        intact = solve_load(inp.hull, c.load(), density=inp.density)
+        secs.append(tk.damage_section(inp, eq, intact))
+        data["intact_equilibrium"] = intact.to_dict()
+        data["damage"] = {t.key: t.rows for t in secs[-1].tables}
+    doc = _doc(f"floating position: {inp.label}  (density {inp.density:g} t/m³)", inp, sections=secs,
+               primary="equilibrium")
+    doc.data = data
     return eq, doc
 
 
@@ -207,14 +226,19 @@ SUMMARY_UNITS = {
 
 
 def solve_curve(inp: CaseInput, heels: np.ndarray, *, direction: str = "auto", free_trim: bool = True,
-                progress: Progress = None) -> tuple[RightingCurve, tuple[int, ...]]:
-    """The GZ curve over ``heels`` [deg, 0..180] on the chosen side(s), and those sides."""
+                progress: Progress = None, method: str | None = None,
+                intact: bool = False) -> tuple[RightingCurve, tuple[int, ...]]:
+    """The GZ curve over ``heels`` [deg, 0..180] on the chosen side(s), and those sides.
+
+    ``method`` overrides the condition's fluid method (``exact``/``fsm``); ``intact`` leaves out the
+    condition's flooded compartments.
+    """
     sides = choose_sides(inp.hull, inp.condition, direction)
     hs = curve_angles(check_angles(heels, 0.0, 180.0), sides)
     c = inp.condition
-    curve = inp.hull.righting_curve(c.displacement, c.cog, heels=hs, free_trim=free_trim, density=inp.density,
-                                    fsm=c.fsm, openings=inp.openings, progress=progress,
-                                    submerged_depth=inp.depth_option())
+    curve = curve_for_load(inp.hull, c.load(method), heels=hs, free_trim=free_trim, density=inp.density,
+                           openings=inp.openings, progress=progress, compartments=() if intact else c.flooded,
+                           submerged_depth=inp.depth_option())
     return curve, sides
 
 
@@ -256,32 +280,40 @@ def righting_analysis(inp: CaseInput, heels: np.ndarray, *, direction: str = "au
     """GZ curve with derived values, and its report (figure ``gz``)."""
     curve, sides = solve_curve(inp, heels, direction=direction, free_trim=free_trim, progress=progress)
     c = inp.condition
+    others = tk.companions(c, lambda **kw: solve_curve(inp, heels, direction=direction, free_trim=free_trim,
+                                                       **kw)[0])
     trim = "free" if curve.free_trim else "fixed"
+    secs = [condition_section(c), Section("levers", tk.curve_label(c) + ":" if others else "",
+                                          tables=[_levers_table(curve)], notes=tk.method_note(c)),
+            _derived_section(curve, sides)]
+    title = f"GZ: {inp.label} (Δ {c.displacement:.3f} t, KG fluid {c.kg_fluid:.3f} m, {trim} trim)"
+    if others:
+        secs.append(tk.comparison_section(c, curve, others, sides))
+        secs[1].figures.append(tk.curves_figure("gz", title, c, curve, others))
+    else:
+        secs[1].figures.append(Figure("gz", title, "righting_curve", curve))
     doc = _doc(f"righting levers: {inp.label}  ({trim} trim, density {inp.density:g} t/m³)", inp,
-               sections=[condition_section(c), Section("levers", "", tables=[_levers_table(curve)]),
-                         _derived_section(curve, sides)], primary="levers")
-    doc.sections[1].figures.append(Figure(
-        "gz", f"GZ: {inp.label} (Δ {c.displacement:.3f} t, KG fluid {c.kg_fluid:.3f} m, {trim} trim)",
-        "righting_curve", curve))
+               sections=secs, primary="levers")
     doc.data = {"condition": c.to_dict(), "free_trim": curve.free_trim, "density": curve.density,
                 "rows": doc.table("levers").rows, "summary": [curve.summary(s) for s in sides], "caution": CAUTION}
     if curve.submerged:
         doc.data.update(submerged=True, note=SUBMERGED_NOTE)
+    if c.tanks:
+        doc.data["fluid"] = c.fluid
+    if others:
+        doc.data["label"] = tk.curve_label(c)
+        doc.data["beside"] = {k: {"label": label, "rows": oc.rows(), "summary": [oc.summary(s) for s in sides]}
+                              for k, label, oc in others}
     return curve, doc
 
 
 # ---------------------------------------------------------------------------- criteria
 
 
-def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, direction: str = "auto",
-                      free_trim: bool = True, progress: Progress = None) -> tuple[Report, Document]:
-    """A criteria set checked on the condition's GZ curve, and its report (verdict set).
-
-    Weather and heeling-arm criteria take the case's [weather], [[windage]] and [[arm]] data
-    (InputError when the set needs what the input lacks)."""
-    sym = inp.hull.is_symmetric and abs(inp.condition.cog[1]) < tol.CENTRELINE
-    wind, arms = wind_and_arms(inp.spec, inp.hull, cset, mirror=sym, where=inp.label)
-    curve, sides = solve_curve(inp, heels, direction=direction, free_trim=free_trim, progress=progress)
+def _check(inp: CaseInput, curve: RightingCurve, cset: CriteriaSet, sides: tuple[int, ...], *,
+           key: str = "results", wind: Any = None, arms: Any = None) -> tuple[Report, Table, Any]:
+    """A criteria set evaluated on one curve: the report, its results table and the upright hydrostatics
+    (None for a submerged body, which has no waterplane)."""
     i0 = int(np.argmin(np.abs(curve.heel)))  # upright is always on the curve
     upright = None if curve.submerged else inp.hull.hydrostatics(
         float(curve.draft[i0] / curve.up[i0, 2]), heel=0.0, trim=float(curve.trim[i0]), density=inp.density)
@@ -291,33 +323,72 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
     rows = [{"id": r.id, "side": r.side, "criterion": r.text, "unit": r.unit, "bound": r.bound[:3],
              "required": r.required, "attained": r.attained, "margin": r.margin,
              "result": "pass" if r.passed else "FAIL", "note": r.note} for r in rep.results]
-    table = Table("results", "", [Column(k, k) for k in keys], rows,
+    table = Table(key, "", [Column(k, k) for k in keys], rows,
                   text_keys=["id", "side", "criterion", "bound", "required", "attained", "margin", "unit", "result",
                              "note"])
-    notes = [f"note: {n}" for n in rep.notes]
+    return rep, table, upright
+
+
+def _extra_notes(inp: CaseInput, curve: RightingCurve, cset: CriteriaSet, upright: Any) -> list[str]:
+    """Notes beside a criteria check: a submerged body, and where the set says it applies."""
+    notes = []
     if curve.submerged:
-        notes.append(f"note: fully submerged at every angle (B fixed, BM = 0, M on B): {SUBMERGED_NOTE}")
+        notes.append(f"fully submerged at every angle (B fixed, BM = 0, M on B): {SUBMERGED_NOTE}")
     if cset.clauses and upright is not None:
-        notes += [f"note: {n}" for n in applicability_notes(upright.lwl, len(inp.hull.report.bodies),
-                                                            clauses=cset.clauses)]
-    sec = Section("results", "", tables=[table], notes=notes)
-    sec.figures.append(_criteria_figure(inp, rep, curve, sides, wind, cset, arms))
-    sections = [condition_section(inp.condition), sec]
+        notes += applicability_notes(upright.lwl, len(inp.hull.report.bodies), clauses=cset.clauses)
+    return notes
+
+
+def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, direction: str = "auto",
+                      free_trim: bool = True, progress: Progress = None) -> tuple[Report, Document]:
+    """A criteria set checked on the condition's GZ curve, and its report (verdict set).
+
+    Weather and heeling-arm criteria take the case's [weather], [[windage]] and [[arm]] data
+    (InputError when the set needs what the input lacks). With tanks the condition's ``fluid`` method
+    decides (the other method's results are shown beside, for information); with flooded compartments
+    the damaged curve decides (survival) and the intact ship's results are shown beside.
+    """
+    c = inp.condition
+    sym = inp.hull.is_symmetric and abs(c.cog[1]) < tol.CENTRELINE
+    wind, arms = wind_and_arms(inp.spec, inp.hull, cset, mirror=sym, where=inp.label)
+    curve, sides = solve_curve(inp, heels, direction=direction, free_trim=free_trim, progress=progress)
+    rep, table, upright = _check(inp, curve, cset, sides, wind=wind, arms=arms)
     weather = [] if wind is None else [{"side": k, **weather_values(*v)} for k, v in wind.last.items()]
+    others = tk.companions(c, lambda **kw: solve_curve(inp, heels, direction=direction, free_trim=free_trim,
+                                                       **kw)[0])
+    what = tk.curve_label(c)
+    extra = _extra_notes(inp, curve, cset, upright)
+    sec = Section("results", f"decided on: {what}" if others else "", tables=[table],
+                  notes=tk.method_note(c) + [f"note: {n}" for n in list(rep.notes) + extra])
+    title = f"GZ and criteria: {inp.label} - {'PASS' if rep.passed else 'FAIL'}"
+    sec.figures.append(tk.curves_figure("gz", title, c, curve, others) if others
+                       else _criteria_figure(inp, rep, curve, sides, wind, cset, arms))
+    secs = [condition_section(c), sec]
     for w in weather:
-        sections.append(Section(f"weather_{w['side']}", f"weather criterion (IS Code 2.3), heeling to {w['side']}:",
-                                values=[Quantity(k, label, w[k], unit) for k, label, unit in WEATHER_VALUES]))
+        secs.append(Section(f"weather_{w['side']}", f"weather criterion (IS Code 2.3), heeling to {w['side']}:",
+                            values=[Quantity(k, label, w[k], unit) for k, label, unit in WEATHER_VALUES]))
+    beside = {}
+    for k, label, oc in others:
+        orep, otab, _ = _check(inp, oc, cset, sides, key=f"results_{k}", wind=wind, arms=arms)
+        secs.append(Section(f"results_{k}", f"beside it, for information: {label} - "
+                            f"{'all met' if orep.passed else 'NOT all met'}", tables=[otab]))
+        beside[k] = {"label": label, "passed": orep.passed, **orep.to_dict()}
     doc = Document(title=f"criteria: {rep.set_name}", vessel=inp.hull.name,
                    header=[f"source: {rep.source}", f"vessel: {inp.label}"],
-                   sections=sections, cautions=[rep.caution], verdict=rep.passed,
-                   verdict_text="all criteria met" if rep.passed else "NOT all criteria met", primary="results",
+                   sections=secs, cautions=[rep.caution], verdict=rep.passed,
+                   verdict_text=("all criteria met" if rep.passed else "NOT all criteria met")
+                   + (f" ({what})" if others else ""), primary="results",
                    meta={"density": inp.density})
-    doc.data = {**rep.to_dict(), "condition": inp.condition.to_dict()}
-    doc.data["notes"] = list(rep.notes) + [n[len("note: "):] for n in notes[len(rep.notes):]]
+    doc.data = {**rep.to_dict(), "condition": c.to_dict(), "notes": list(rep.notes) + extra}
     if weather:
         doc.data["weather"] = weather
     if curve.submerged:
         doc.data.update(submerged=True, submerged_note=SUBMERGED_NOTE)
+    if c.tanks:
+        doc.data["fluid"] = c.fluid
+    if others:
+        doc.data["decided_on"] = what
+        doc.data["beside"] = beside
     return rep, doc
 
 
@@ -373,6 +444,18 @@ def cross_analysis(hull: FloatingHull, displacements: np.ndarray, heels: np.ndar
     doc.data = {"density": density, "heels": cc.heels, "displacements": cc.displacements, "lcg": cc.lcg,
                 "kn": cc.kn, "note": "G at K (KG = 0) on the centreline; free trim", "caution": CAUTION}
     return cc, doc
+
+
+def drafts_for_displacements(hull: FloatingHull, displacements: np.ndarray, *, heel: float = 0.0,
+                             trim: float = 0.0, density: float = SEA_WATER) -> np.ndarray:
+    """Drafts [m] at (x_ref, 0) at which the hull displaces each of ``displacements`` [t] (fixed heel, trim)."""
+    from .solver import check_load
+
+    out = []
+    for d in np.asarray(displacements, float):
+        rho, v0 = check_load(hull, float(d), density)
+        out.append(hull.draft_for_volume(v0, heel=heel, trim=trim))
+    return np.array(out)
 
 
 def table_analysis(hull: FloatingHull, drafts: np.ndarray, *, heel: float = 0.0, trim: float = 0.0,

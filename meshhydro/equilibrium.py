@@ -7,7 +7,8 @@ nearest stable heel. The load is a :class:`meshhydro.load.Load` (G may move with
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any
+from dataclasses import replace
+from typing import Any, Sequence
 
 import numpy as np
 
@@ -155,10 +156,15 @@ def _loll(ev: Evaluator, v0: float, load: Load, upright: State) -> tuple[State, 
 
 
 def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel: float = 0.0,
-               start_trim: float = 0.0, submerged_depth: float = 0.0) -> Equilibrium:
-    """Equilibrium for any :class:`~meshhydro.load.Load` (see :func:`solve`)."""
+               start_trim: float = 0.0, submerged_depth: float = 0.0,
+               compartments: Sequence[Any] = ()) -> Equilibrium:
+    """Equilibrium for any :class:`~meshhydro.load.Load` (see :func:`solve`).
+
+    ``compartments`` (:class:`meshhydro.damage.Compartment`) are flooded, open to the sea (lost
+    buoyancy): the position is the damaged one and the hydrostatics those of the net body.
+    """
     rho, v0 = check_load(hull, load.displacement, density)
-    ev = Evaluator(hull)
+    ev = Evaluator(hull, compartments)
     if is_neutral(hull, v0):
         st, note = sub.equilibrium_state(ev, load, submerged_depth, hull.total_volume * rho)
         return _result(hull, ev, load, st, rho, v0, 0, False, note, submerged=True)
@@ -194,6 +200,8 @@ def _result(hull: Hull, ev: Evaluator, load: Load, st: State, rho: float, v0: fl
 
     solid = np.array(getattr(load, "cog", g), dtype=float)
     hs = None if submerged else hull.hydrostatics(st.draft, heel=st.heel, trim=st.trim, density=rho)
+    if hs is not None and ev.compartments:
+        hs = _net_hydrostatics(hs, st.cut, rho)
     return Equilibrium(
         displacement=float(load.displacement), density=rho, draft=float(st.draft), draft_fore=draft_at(xf),
         draft_aft=draft_at(xa), x_fore=xf, x_aft=xa, heel=st.heel, trim=st.trim, volume=st.cut.volume,
@@ -202,3 +210,20 @@ def _result(hull: Hull, ev: Evaluator, load: Load, st: State, rho: float, v0: fl
         iterations=iterations, evaluations=ev.count, residual_volume=float(abs(r[0])),
         residual_lever=float(max(abs(r[1]), abs(r[2])) * ev.L), note=note, submerged=submerged,
     )
+
+
+def _net_hydrostatics(hs: Hydrostatics, c: Any, rho: float) -> Hydrostatics:
+    """The particulars of the net buoyant body (flooded compartments lost) at the same waterplane.
+
+    Volume, centres, waterplane area and centroid, BM and KM, TPC and MCT come from the net cut
+    ``c`` (lost-buoyancy method: the intact waterplane minus the flooded spaces'); the form
+    coefficients and wetted area stay those of the outer shell.
+    """
+    v = max(c.volume, 1e-300)
+    bmt, bml = c.inertia_t / v, c.inertia_l / v
+    disp = rho * c.volume
+    return replace(hs, volume=c.volume, displacement=disp, lcb=float(c.centroid[0]), tcb=float(c.centroid[1]),
+                   vcb=float(c.centroid[2]), awp=c.waterplane_area, lcf=float(c.waterplane_centroid[0]),
+                   tcf=float(c.waterplane_centroid[1]), tpc=c.waterplane_area * rho / 100.0,
+                   mct=disp * bml / (100.0 * hs.lwl) if hs.lwl > 0 else 0.0, bmt=bmt, bml=bml,
+                   kmt=float(c.centroid[2]) + bmt, kml=float(c.centroid[2]) + bml)

@@ -15,7 +15,7 @@ from typing import Any, Mapping, Sequence
 import numpy as np
 
 from .errors import InputError
-from .tanks import UP_UPRIGHT, Tank, TankState, tank_state, unit_vertical
+from .tanks import UP_UPRIGHT, Tank, TankState, checked_state, tank_state, unit_vertical
 
 
 @dataclass(frozen=True)
@@ -33,24 +33,25 @@ class _Warm:
     shift: float
     tilt: float
 
-    def guess(self, n: np.ndarray) -> np.ndarray:
-        tilt = _angle(self.normal, n)
+    def guess(self, n: np.ndarray, tilt: float) -> np.ndarray:
+        """A point near the level at normal ``n``, ``tilt`` [rad] away from this one's normal."""
         if self.tilt > 0.0 and tilt > 0.0:
             k = min((tilt / self.tilt) ** 2, 4.0)
             return self.point + k * self.shift * n
         return self.point
 
     @staticmethod
-    def after(prev: "_Warm | None", st: TankState) -> "_Warm":
+    def after(prev: "_Warm | None", st: TankState, tilt: float) -> "_Warm":
         if prev is None:
             return _Warm(st.level_point, st.normal, 0.0, 0.0)
         shift = float(st.normal @ (st.level_point - prev.point))
-        return _Warm(st.level_point, st.normal, shift, _angle(prev.normal, st.normal))
+        return _Warm(st.level_point, st.normal, shift, tilt)
 
 
 def _angle(a: np.ndarray, b: np.ndarray) -> float:
     """Angle [rad] between unit vectors (3,), exact for small angles."""
-    return float(2.0 * math.atan2(np.linalg.norm(a - b), np.linalg.norm(a + b)))
+    d, s = a - b, a + b
+    return float(2.0 * math.atan2(math.sqrt(float(d @ d)), math.sqrt(float(s @ s))))
 
 
 class FluidLoad:
@@ -100,9 +101,10 @@ class FluidLoad:
         out = []
         for i, (t, v) in enumerate(zip(self.tanks, self.volumes)):
             w = self._warm[i]
-            st = tank_state(t, n, v, guess=None if w is None else w.guess(n))
+            tilt = 0.0 if w is None else _angle(w.normal, n)
+            st = checked_state(t, n, v, None if w is None else w.guess(n, tilt))  # n, v checked already
             if st.cuts:
-                self._warm[i] = _Warm.after(w, st)
+                self._warm[i] = _Warm.after(w, st, tilt)
             self.cuts += st.cuts
             out.append(st)
         return out

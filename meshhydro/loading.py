@@ -36,7 +36,7 @@ Example::
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 import numpy as np
@@ -63,6 +63,13 @@ class Condition:
 
     ``fsm`` is the total free-surface moment [t·m]; ``kg_fluid`` = KG + FSM/Δ and
     ``cog_fluid`` is G raised by that amount along the hull z axis.
+
+    With tanks (:func:`meshhydro.tank_case.resolve_condition` fills these in), ``displacement``,
+    ``cog`` and ``fsm`` include the tank contents upright (fluid centroids at heel 0, trim 0, and
+    their free-surface moments ρ i_t): ``tanks`` (Tank objects) hold ``volumes`` [m³] of fluid, of
+    mass ``fluid_mass`` [t], first moment ``fluid_moment`` (3,) [t·m] and ``fluid_fsm`` [t·m];
+    ``fluid`` is the method the condition's results use (``"exact"`` level surfaces or ``"fsm"``
+    virtual rise). ``flooded`` holds the Compartment objects open to the sea (lost buoyancy).
     """
 
     name: str
@@ -70,6 +77,16 @@ class Condition:
     cog: tuple[float, float, float]
     fsm: float = 0.0
     items: tuple[MassItem, ...] = ()
+    tanks: tuple[Any, ...] = ()
+    volumes: tuple[float, ...] = ()
+    fluid: str | None = None
+    flooded: tuple[Any, ...] = ()
+    fluid_mass: float = 0.0
+    fluid_moment: tuple[float, float, float] = (0.0, 0.0, 0.0)
+    fluid_fsm: float = 0.0
+    #: True while the condition's tank fills or flooded compartments are not yet joined to it
+    #: (as read from a case file, before :func:`meshhydro.tank_case.resolve_condition`)
+    pending: bool = False
 
     @property
     def free_surface_rise(self) -> float:
@@ -87,9 +104,28 @@ class Condition:
     def cog_fluid(self) -> np.ndarray:
         return virtual_cog(self.cog, self.fsm, self.displacement)
 
-    def load(self) -> FixedLoad:
-        """The condition as the solver's load: solid G raised by FSM / Δ, fixed with the attitude."""
-        return FixedLoad(self.displacement, self.cog, self.fsm)
+    def load(self, method: str | None = None) -> Any:
+        """The condition as the solver's load (a new object each call: a tank load keeps a warm start).
+
+        ``method`` (default the condition's ``fluid``): ``"fsm"`` gives a :class:`FixedLoad`, G upright
+        raised by FSM / Δ; ``"exact"`` with tanks gives a :class:`~meshhydro.tank_load.TankLoad` whose G
+        moves with the levelled fluid (typed item FSM still as a virtual rise).
+        """
+        if self.pending:
+            raise InputError(f"condition {self.name!r} has tank fills or flooded compartments that are not "
+                             f"resolved against the hull (meshhydro.tank_case.resolve_condition)")
+        m = method or self.fluid or "fsm"
+        if m not in ("exact", "fsm"):
+            raise InputError(f"condition {self.name!r}: fluid method must be exact or fsm, got {m!r}")
+        if m == "fsm" or not self.tanks:
+            return FixedLoad(self.displacement, self.cog, self.fsm)
+        from .fluid import FluidLoad
+        from .tank_load import TankLoad
+
+        solid_mass = self.displacement - self.fluid_mass
+        solid_moment = np.array(self.cog) * self.displacement - np.array(self.fluid_moment)
+        return TankLoad(max(solid_mass, 0.0), solid_moment, FluidLoad(self.tanks, self.volumes),
+                        item_fsm=max(self.fsm - self.fluid_fsm, 0.0))
 
     def to_dict(self) -> dict[str, Any]:
         return {
@@ -98,6 +134,11 @@ class Condition:
             "kg_fluid": self.kg_fluid,
             "items": [{"name": i.name, "mass": i.mass, "x": i.at[0], "y": i.at[1], "z": i.at[2], "fsm": i.fsm}
                       for i in self.items],
+            **({"fluid": self.fluid, "fluid_mass": self.fluid_mass, "fluid_fsm": self.fluid_fsm,
+                "tanks": [{"name": t.name, "volume": v, "fraction": v / t.capacity, "density": t.density}
+                          for t, v in zip(self.tanks, self.volumes)]} if self.tanks else {}),
+            **({"flooded": [{"name": c.name, "permeability": c.permeability} for c in self.flooded]}
+               if self.flooded else {}),
         }
 
 
@@ -198,7 +239,18 @@ class Case:
 
 
 def _condition_from_spec(c: Any) -> Condition:
-    """A :class:`Condition` from a validated ``[[condition]]`` entry (mass items, or displacement and cog)."""
+    """A :class:`Condition` from a validated ``[[condition]]`` entry (mass items, or displacement and cog).
+
+    Tank fills and flooded compartments need the hull: the condition is marked ``pending`` until
+    :func:`meshhydro.tank_case.resolve_condition` joins them.
+    """
+    cond = _solid_condition(c)
+    if c.fills or c.soundings or c.volumes or c.flooded:
+        cond = replace(cond, pending=True)
+    return cond
+
+
+def _solid_condition(c: Any) -> Condition:
     if c.items is not None:
         items = [MassItem(i.name, float(i.mass), tuple(float(x) for x in i.at), float(i.fsm or 0.0))
                  for i in c.items]

@@ -176,11 +176,12 @@ def section_view(hull: Hull | Sequence[Hull], traces: Sequence[Any], path: str, 
         if out.any():
             ax.plot(m[out, 1], np.full(out.sum(), z1 - 0.02 * ext), "^", color=col, ms=6, alpha=0.8,
                     label=f"M above the window (BM up to {float(np.max(t.bm[out])):.1f} m)")
-        ax.plot([t.cog[1]], [t.cog[2]], "X", color=col, ms=10, mec="k", label=f"G: {name}")
         k = len(t.heel) - 1 if current is None else current
+        g = t.cog_at(k) if hasattr(t, "cog_at") else t.cog
+        ax.plot([g[1]], [g[2]], "X", color=col, ms=10, mec="k", label=f"G: {name}")
         n = t.up[k]
-        z = t.cob[k] + ((t.cog - t.cob[k]) @ n) * n  # foot of the perpendicular from G on the vertical through B
-        ax.plot([t.cog[1], z[1]], [t.cog[2], z[2]], color="tab:orange" if len(traces) == 1 else col, lw=3,
+        z = t.cob[k] + ((g - t.cob[k]) @ n) * n  # foot of the perpendicular from G on the vertical through B
+        ax.plot([g[1], z[1]], [g[2], z[2]], color="tab:orange" if len(traces) == 1 else col, lw=3,
                 label=f"GZ {t.gz[k]:+.3f} m at {t.heel[k]:g}°" + ("" if len(traces) == 1 else f" ({name})"))
         ax.plot([t.cob[k][1], t.cob[k][1] + ext * n[1]], [t.cob[k][2], t.cob[k][2] + ext * n[2]], ":", color=col, lw=1)
         for j in range(0, len(t.heel), max(1, len(t.heel) // 6)):
@@ -229,6 +230,47 @@ def convergence_plot(rows: Sequence[dict[str, Any]], path: str, *, title: str = 
     _save(fig, path)
 
 
+def righting_curves(data: Any, path: str, *, title: str = "") -> None:
+    """Several GZ curves of one condition on one axes (``data["curves"]``: (label, RightingCurve) pairs):
+    the exact fluid shift beside the FSM virtual rise, a damaged ship beside the intact one."""
+    fig, ax = _figure(figsize=(10, 6))
+    for k, (label, curve) in enumerate(data["curves"]):
+        h = curve.heel
+        fine = np.linspace(h[0], h[-1], max(400, 4 * len(h)))
+        ax.plot(fine, curve.interpolant()(fine), lw=2 if k == 0 else 1.4, ls="-" if k == 0 else "--",
+                color=f"C{k}", label=label + (" (decides)" if k == 0 else ""))
+        ax.plot(h, curve.gz, ".", color=f"C{k}", ms=2)
+    ax.axhline(0, color="k", lw=0.8)
+    ax.set_xlabel("heel φ [deg]  (positive: starboard down)")
+    ax.set_ylabel("righting lever GZ [m]")
+    ax.grid(True, alpha=0.3)
+    ax.legend(loc="best", fontsize=8)
+    ax.set_title(title or "Righting-lever curves")
+    fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    _save(fig, path)
+
+
+def tank_calibration(tables: Any, path: str, *, title: str = "") -> None:
+    """Sounding against volume and against transverse free-surface moment, one line per tank
+    (``tables``: tank name -> calibration rows of :func:`meshhydro.tank_tables.calibration_table`)."""
+    fig, (a1, a2) = _figure(1, 2, figsize=(11, 5.5), sharey=True)
+    for k, (name, rows) in enumerate(tables.items()):
+        s = [r["sounding"] for r in rows]
+        a1.plot([r["volume"] for r in rows], s, ".-", color=f"C{k}", label=name)
+        a2.plot([r["fsm_t"] for r in rows], s, ".-", color=f"C{k}", label=name)
+    a1.set_xlabel("volume [m³]")
+    a2.set_xlabel("free-surface moment ρ i_t [t·m]")
+    a1.set_ylabel("sounding [m]")
+    for ax in (a1, a2):
+        ax.grid(True, alpha=0.3)
+    a1.legend(fontsize=8)
+    fig.suptitle(title or "Tank calibration")
+    fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
+    fig.tight_layout(rect=(0, 0.02, 1, 0.97))
+    _save(fig, path)
+
+
 def draw(figure: Any, path: str) -> None:
     """Draw a document :class:`~meshhydro.document.Figure` to a PNG at ``path`` with the view it names."""
     if figure.view == "submergence":  # drawn by the report-grade view
@@ -239,5 +281,6 @@ def draw(figure: Any, path: str) -> None:
     from .plots_limits import criteria_gz, kg_limits
 
     views = {"righting_curve": righting_curve, "cross_curves": cross_curves, "hydrostatic_curves": hydrostatic_curves,
-             "criteria_gz": criteria_gz, "kg_limits": kg_limits}
+             "criteria_gz": criteria_gz, "kg_limits": kg_limits,
+             "righting_curves": righting_curves, "tank_calibration": tank_calibration}
     views[figure.view](figure.data, path, title=figure.title)

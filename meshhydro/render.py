@@ -139,7 +139,7 @@ class Scene:
             n = len(seg) // 2
             lines = np.hstack([np.full((n, 1), 2), np.arange(2 * n).reshape(n, 2)]).ravel()
             p.add_mesh(pv.PolyData(seg, lines=lines), color=COLOURS["waterline"], line_width=3, name="waterline", render=False)
-        G = self._to_earth(k, t.cog[None, :])[0]
+        G = self._to_earth(k, t.cog_at(k)[None, :])[0]
         B = self._to_earth(k, t.cob[k][None, :])[0]
         M = self._to_earth(k, t.metacentre[k][None, :])[0]
         if self.camera == "astern":

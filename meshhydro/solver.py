@@ -27,6 +27,7 @@ import numpy as np
 
 from . import kernel
 from . import tolerances as tol
+from .damage import Compartment, flooded_cut
 from .errors import CannotFloatError, InputError, NotConvergedError, OpenRimError
 from .frames import longitudinal_direction, transverse_direction, up_derivatives, up_vector
 from .hull import Hull
@@ -58,10 +59,18 @@ class State:
 
 
 class Evaluator:
-    """Evaluates states of one hull and counts kernel evaluations."""
+    """Evaluates states of one hull and counts kernel evaluations.
 
-    def __init__(self, hull: Hull) -> None:
+    ``compartments`` (optional, :class:`meshhydro.damage.Compartment`) are flooded, open to the
+    sea: every state's cut is the net buoyant body (intact minus μ × their part below the plane,
+    lost-buoyancy method, :func:`meshhydro.damage.flooded_cut`); the weight does not change.
+    """
+
+    def __init__(self, hull: Hull, compartments: Sequence[Compartment] = ()) -> None:
         self.hull = hull
+        self.compartments = tuple(compartments)
+        #: largest net volume [m³] the closed hull can displace (fully submerged, flooded spaces lost)
+        self.max_volume = hull.total_volume - sum(c.permeability * c.volume for c in self.compartments)
         self.prep: kernel.Prepared = hull.prepared
         self.K = np.array([hull.x_ref, 0.0, 0.0])
         self.count = 0
@@ -73,6 +82,8 @@ class Evaluator:
         n = up_vector(heel, trim)
         self.count += 1
         c = kernel.cut(self.prep, self.K + depth * n, n)
+        if self.compartments:
+            c = flooded_cut(c, self.compartments)
         return State(float(depth), float(heel), float(trim), c)
 
     def depth_range(self, heel: float, trim: float) -> tuple[float, float]:
@@ -196,10 +207,11 @@ def solve_volume(ev: Evaluator, v0: float, heel: float, trim: float, start: floa
     """
     lo, hi = ev.depth_range(heel, trim)
     closed = bool(ev.hull.report.closed)
-    vmax = ev.hull.total_volume if closed else None
+    vmax = ev.max_volume if closed else None
     if vmax is not None and v0 >= vmax * (1 - tol.FULLY_SUBMERGED):
-        raise CannotFloatError(f"the load needs {v0:.6g} m³ of displacement but the closed hull holds at most "
-                               f"{ev.hull.total_volume:.6g} m³ (fully submerged): it cannot float")
+        lost = " with its flooded compartments" if ev.compartments else ""
+        raise CannotFloatError(f"the load needs {v0:.6g} m³ of displacement but the closed hull{lost} holds at "
+                               f"most {vmax:.6g} m³ (fully submerged): it cannot float")
     a, b = lo, hi
     frac = 0.5 if vmax is None else min(max(v0 / vmax, 0.05), 0.95)
     d = start if start is not None and lo < start < hi else lo + (hi - lo) * frac

@@ -76,6 +76,8 @@ class RightingCurve:
     submerged : bool
         A neutral load, fully submerged at every angle: no waterplane (``bm`` is 0, M on B), B fixed
         in the hull, weight stability only (:data:`meshhydro.submerged.NOTE`).
+    centres : (n, 3) [m] or None
+        G at each angle (it moves with the attitude when tank fluid shifts).
     """
 
     heel: np.ndarray
@@ -97,6 +99,11 @@ class RightingCurve:
     deck_freeboard: np.ndarray | None
     openings: dict[str, np.ndarray] = field(default_factory=dict)
     submerged: bool = False
+    centres: np.ndarray | None = None
+
+    def centre_at(self, k: int) -> np.ndarray:
+        """G (3,) [m] at the k-th angle (``cog`` when the curve has no per-angle centres)."""
+        return self.cog if self.centres is None else self.centres[k]
 
     # ------------------------------------------------------------ interpolation
     def interpolant(self) -> Any:
@@ -315,11 +322,16 @@ def _heel_set(heels: Sequence[float] | None) -> np.ndarray:
 
 def curve_for_load(hull: Hull, load: Load, *, heels: Sequence[float] | None = None, free_trim: bool = True,
                    density: float = SEA_WATER, openings: Sequence[HasPoint] = (),
-                   progress: Callable[[], object] | None = None, submerged_depth: float = 0.0) -> RightingCurve:
-    """GZ curve for any :class:`~meshhydro.load.Load` (see :func:`righting_curve`); G is taken at each angle."""
+                   progress: Callable[[], object] | None = None, submerged_depth: float = 0.0,
+                   compartments: Sequence[Any] = ()) -> RightingCurve:
+    """GZ curve for any :class:`~meshhydro.load.Load` (see :func:`righting_curve`); G is taken at each angle.
+
+    ``compartments`` (:class:`meshhydro.damage.Compartment`) are flooded, open to the sea at every
+    angle (lost buoyancy): the curve is the damaged one, the displacement the intact ship's.
+    """
     rho, v0 = check_load(hull, load.displacement, density)
     hs = _heel_set(heels)
-    ev = Evaluator(hull)
+    ev = Evaluator(hull, compartments)
     if is_neutral(hull, v0):
         return _submerged_curve(hull, ev, load, hs, rho, free_trim, openings, progress, submerged_depth)
     up0 = upright_free_trim(ev, v0, load)
@@ -374,6 +386,7 @@ def _assemble(hull: Hull, ev: Evaluator, load: Load, hs: np.ndarray, states: lis
         evaluations=evals,
         displacement=float(load.displacement), density=rho, cog=np.array(gs[0], dtype=float),
         free_trim=bool(free_trim), gm_upright=gm_up, deck_freeboard=deck_fb, openings=ops, submerged=submerged,
+        centres=gs,
     )
 
 

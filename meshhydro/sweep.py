@@ -62,6 +62,10 @@ class Trace:
     displacement = property(lambda self: self.curve.displacement)
     density = property(lambda self: self.curve.density)
 
+    def cog_at(self, k: int) -> np.ndarray:
+        """G (3,) [m] at the k-th angle (moves with shifting tank fluid)."""
+        return self.curve.centre_at(k)
+
     @property
     def metacentre(self) -> np.ndarray:
         """Pro-metacentre (n, 3) [m] of each angle: B + (I_T / V) up."""
@@ -72,7 +76,7 @@ class Trace:
         for k in range(len(self.heel)):
             rows.append({"heel": float(self.heel[k]), "draft": float(self.draft[k]), "trim": float(self.trim[k]),
                          "gz": float(self.gz[k]), "B": self.cob[k].tolist(), "M": self.metacentre[k].tolist(),
-                         "G": self.cog.tolist(), "up": self.up[k].tolist(), "bm": float(self.bm[k])})
+                         "G": self.cog_at(k).tolist(), "up": self.up[k].tolist(), "bm": float(self.bm[k])})
         return {"label": self.label, "displacement": self.displacement, "density": self.density,
                 "frame": "hull frame: x forward, y to port, z up [m]; heel positive starboard down",
                 "submerged": bool(self.curve.submerged), "note": self.note, "angles": rows}
@@ -85,9 +89,20 @@ class Trace:
 
 def heel_trace(hull: Hull, displacement: float, cog: Sequence[float], heels: Sequence[float], *,
                density: float = SEA_WATER, fsm: float = 0.0, label: str = "", progress: Any = None,
-               submerged_depth: float = 0.0) -> Trace:
-    """Free-trim positions over ``heels`` [deg] with B, M and G in the hull frame (``submerged_depth`` [m]:
-    see :func:`meshhydro.stability.righting_curve`)."""
+               submerged_depth: float = 0.0, load: Any = None, compartments: Sequence[Any] = ()) -> Trace:
+    """Free-trim positions over ``heels`` [deg] with B, M and G in the hull frame.
+
+    ``submerged_depth`` [m]: see :func:`meshhydro.stability.righting_curve`. ``load`` (a
+    :class:`meshhydro.load.Load`, e.g. a condition's ``load()`` with tank fluid that shifts) replaces
+    displacement, cog and fsm when given; ``compartments`` are flooded (lost buoyancy).
+    """
+    if load is not None or compartments:
+        from .load import FixedLoad
+        from .stability import curve_for_load
+
+        ld = load if load is not None else FixedLoad(displacement, vec3(cog, "cog"), fsm)
+        return Trace(curve_for_load(hull, ld, heels=heels, density=density, progress=progress,
+                                    compartments=compartments, submerged_depth=submerged_depth), label)
     return Trace(righting_curve(hull, displacement=displacement, cog=vec3(cog, "cog"), heels=heels, density=density,
                                 fsm=fsm, progress=progress, submerged_depth=submerged_depth), label)
 

@@ -23,7 +23,7 @@ bad values raise :class:`~meshhydro.errors.InputError` naming the tank and the v
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any, Sequence
 
 import numpy as np
@@ -113,6 +113,10 @@ class Tank:
         return tank_state(self, up, volume, guess=guess)
 
 
+_NO_INERTIA = np.zeros((3, 3))
+_NO_INERTIA.flags.writeable = False
+
+
 @dataclass(frozen=True)
 class TankState:
     """The fluid of one tank at one attitude (hull frame, SI).
@@ -138,6 +142,10 @@ class TankState:
         Vertical depth of the surface above the sounding point, ``normal · (level_point - sounding_point)``.
     cuts : int
         Kernel cuts this state took (0 for full and empty tanks).
+    inertia_tensor : (3, 3) float64 [m⁴], hull frame
+        Second-moment tensor of the free surface about its centroid, ∫ (x - F)(x - F)ᵀ dA
+        (zeros for full and empty tanks). Tilting the surface by dn moves the fluid's
+        first moment by -J dn (volume held), which gives the exact rate of the fluid shift.
     """
 
     name: str
@@ -151,6 +159,7 @@ class TankState:
     level_point: np.ndarray
     sounding: float
     cuts: int
+    inertia_tensor: np.ndarray = field(default_factory=lambda: _NO_INERTIA)
 
     @property
     def fsm_t(self) -> float:
@@ -328,9 +337,10 @@ def check_inside(name: str, vertices: np.ndarray, faces: np.ndarray, hull: Any, 
 def unit_vertical(up: Any) -> np.ndarray:
     """The vertical ``up`` (3,) normalised; InputError when not three finite numbers, not all zero."""
     n = np.asarray(up, dtype=float).reshape(-1)
-    if n.shape != (3,) or not np.all(np.isfinite(n)) or not np.linalg.norm(n) > 0:
+    r = math.sqrt(float(n @ n)) if n.shape == (3,) else math.nan
+    if not (math.isfinite(r) and r > 0):
         raise InputError(f"the vertical must be three finite numbers, not all zero, got {up!r}")
-    return n / np.linalg.norm(n)
+    return n / r
 
 
 def solve_level(prep: kernel.Prepared, up: np.ndarray, volume: float, *, capacity: float,
@@ -396,6 +406,13 @@ def _extreme(tank: Tank, n: np.ndarray, top: bool) -> np.ndarray:
     return tank.vertices[int(np.argmax(s) if top else np.argmin(s))].copy()
 
 
+def surface_tensor(c: kernel.Cut) -> np.ndarray:
+    """The cut's waterplane second-moment tensor (3, 3) [m⁴] about its centroid, hull frame
+    (the same as ``c.inertia_tensor``, in one small product)."""
+    m = np.array([c.axis_u, c.axis_v])
+    return m.T @ np.array([[c.inertia_l, c.inertia_uv], [c.inertia_uv, c.inertia_t]]) @ m
+
+
 def tank_state(tank: Tank, up: Any, volume: float, *, guess: np.ndarray | None = None) -> TankState:
     """The fluid of ``volume`` [m³] in ``tank`` with a level surface at attitude ``up`` (3,).
 
@@ -405,6 +422,11 @@ def tank_state(tank: Tank, up: Any, volume: float, *, guess: np.ndarray | None =
     vol = _finite(volume, f"tank {tank.name!r}: volume")
     if not 0.0 <= vol <= tank.capacity:
         raise InputError(f"tank {tank.name!r}: volume {vol:.6g} m³ is outside 0..{tank.capacity:.6g} m³")
+    return checked_state(tank, n, vol, guess)
+
+
+def checked_state(tank: Tank, n: np.ndarray, vol: float, guess: np.ndarray | None) -> TankState:
+    """:func:`tank_state` for a unit vertical ``n`` (3,) and a volume already checked to lie in 0..capacity."""
     if vol == 0.0 or vol == tank.capacity:
         full = vol == tank.capacity
         lp = _extreme(tank, n, top=full)
@@ -414,7 +436,7 @@ def tank_state(tank: Tank, up: Any, volume: float, *, guess: np.ndarray | None =
     c, k = solve_level(tank.prepared, n, vol, capacity=tank.capacity, guess=guess, name=tank.name)
     lp = c.waterplane_centroid
     return TankState(tank.name, vol, tank.density * vol, c.centroid, c.waterplane_area, c.inertia_t,
-                     c.inertia_l, n, lp, float(n @ (lp - tank.sounding_point)), k)
+                     c.inertia_l, n, lp, float(n @ (lp - tank.sounding_point)), k, surface_tensor(c))
 
 
 def sounding_cut(tank: Tank, sounding: float, up: Any) -> kernel.Cut:

@@ -37,6 +37,89 @@ def _write_stl(path: str, v: np.ndarray, f: np.ndarray) -> None:
 
 
 CASES = {
+    "brindle_tanks": """# "Brindle" with six tanks and two spaces that may flood (invented demo loading)
+[hull]
+mesh = "../brindle_barge.stl"
+units = "m"
+
+[water]
+density = 1.025
+
+[[opening]]
+name = "deckhouse door sill"
+at = [2.0, -1.2, 2.3]
+
+[[tank]]
+name = "fuel port"
+box = [[1.6, 0.4, 0.05], [3.0, 2.3, 0.9]]
+density = 0.85
+
+[[tank]]
+name = "fuel starboard"
+box = [[1.6, -2.3, 0.05], [3.0, -0.4, 0.9]]
+density = 0.85
+
+[[tank]]
+name = "fresh water"
+box = [[9.0, -1.0, 0.05], [10.4, 1.0, 0.8]]
+density = 1.0
+
+[[tank]]
+name = "ballast port wing"
+box = [[4.0, 1.4, 0.05], [8.0, 2.3, 1.5]]
+density = 1.025
+
+[[tank]]
+name = "ballast starboard wing"
+box = [[4.0, -2.3, 0.05], [8.0, -1.4, 1.5]]
+density = 1.025
+
+[[tank]]
+name = "double bottom"
+box = [[4.0, -1.3, 0.05], [8.0, 1.3, 0.4]]
+density = 1.025
+
+[[compartment]]
+name = "starboard void"
+box = [[8.2, -2.35, 0.02], [10.4, -1.2, 1.55]]
+permeability = 0.95
+
+[[compartment]]
+name = "midship store"
+box = [[4.1, -1.2, 0.45], [7.9, 1.2, 1.55]]
+permeability = 0.6
+
+[[condition]]
+name = "departure"
+items = [
+  { name = "lightship",       mass = 18.0, at = [5.9, 0.0, 0.85] },
+  { name = "deck cargo",      mass = 8.0,  at = [6.5, 0.0, 2.00] },
+  { name = "crew and stores", mass = 1.0,  at = [2.0, 0.0, 2.10] },
+]
+fills = { "fuel port" = 0.9, "fuel starboard" = 0.9, "fresh water" = 0.8, "ballast port wing" = 0.5, "ballast starboard wing" = 0.5, "double bottom" = 1.0 }
+fluid = "exact"
+
+[[condition]]
+name = "departure, free-surface moments"
+items = [
+  { name = "lightship",       mass = 18.0, at = [5.9, 0.0, 0.85] },
+  { name = "deck cargo",      mass = 8.0,  at = [6.5, 0.0, 2.00] },
+  { name = "crew and stores", mass = 1.0,  at = [2.0, 0.0, 2.10] },
+]
+fills = { "fuel port" = 0.9, "fuel starboard" = 0.9, "fresh water" = 0.8, "ballast port wing" = 0.5, "ballast starboard wing" = 0.5, "double bottom" = 1.0 }
+fluid = "fsm"
+
+[[condition]]
+name = "starboard void flooded"
+items = [
+  { name = "lightship",       mass = 18.0, at = [5.9, 0.0, 0.85] },
+  { name = "deck cargo",      mass = 8.0,  at = [6.5, 0.0, 2.00] },
+  { name = "crew and stores", mass = 1.0,  at = [2.0, 0.0, 2.10] },
+]
+fills = { "fuel port" = 0.9, "fuel starboard" = 0.9, "fresh water" = 0.8, "ballast port wing" = 0.5, "ballast starboard wing" = 0.5, "double bottom" = 1.0 }
+flooded = ["starboard void"]
+fluid = "exact"
+""",
     "brindle_barge": """# "Brindle": 12 m work barge carrying a deck load (invented demo vessel)
 [hull]
 mesh = "../brindle_barge.stl"

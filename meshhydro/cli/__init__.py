@@ -24,6 +24,7 @@ from . import stability as cli_stability
 from . import study as cli_study
 from . import submergence as cli_submergence
 from . import sweep as cli_sweep
+from . import tanks as cli_tanks
 
 # ---------------------------------------------------------------------------- main
 
@@ -44,6 +45,7 @@ def build_parser() -> argparse.ArgumentParser:
     cli_study.register(sub)
     cli_limits.register(sub)
     cli_submergence.register(sub)
+    cli_tanks.register(sub)
     return p
 
 

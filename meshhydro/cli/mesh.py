@@ -4,7 +4,8 @@ from __future__ import annotations
 import argparse
 import sys
 
-from ..analysis import check_analysis, table_analysis
+from ..analysis import check_analysis, drafts_for_displacements, table_analysis
+from ..errors import InputError
 from .common import density, load_mesh, mesh_args, out_args, output, parse_range, parse_vec, water_args
 
 
@@ -28,9 +29,16 @@ def cmd_check(args: argparse.Namespace) -> int:
 
 
 def cmd_table(args: argparse.Namespace) -> int:
-    drafts = parse_range(args.drafts, "--drafts")
+    if (args.drafts is None) == (args.displacements is None):
+        raise InputError("table needs exactly one of --drafts and --displacements")
     hull = load_mesh(args)
-    _, doc = table_analysis(hull, drafts, heel=args.heel, trim=args.trim, density=density(args))
+    rho = density(args)
+    if args.drafts is not None:
+        drafts = parse_range(args.drafts, "--drafts")
+    else:
+        drafts = drafts_for_displacements(hull, parse_range(args.displacements, "--displacements"),
+                                          heel=args.heel, trim=args.trim, density=rho)
+    _, doc = table_analysis(hull, drafts, heel=args.heel, trim=args.trim, density=rho)
     output(args, doc, args.plot)
     return 0
 
@@ -43,9 +51,10 @@ def register(sub: argparse._SubParsersAction) -> None:
     out_args(c, ("text", "json"))
     c.set_defaults(func=cmd_check)
 
-    t = sub.add_parser("table", help="hydrostatic table over a range of drafts")
+    t = sub.add_parser("table", help="hydrostatic table over a range of drafts or displacements")
     t.add_argument("mesh")
-    t.add_argument("--drafts", required=True, help="START:STOP:STEP [m] (STOP included) or a list 0.5,1,1.5")
+    t.add_argument("--drafts", help="START:STOP:STEP [m] (STOP included) or a list 0.5,1,1.5")
+    t.add_argument("--displacements", help="START:STOP:STEP [t] or a list: the table at these displacements")
     t.add_argument("--heel", type=float, default=0.0, help="heel [deg], positive starboard down")
     t.add_argument("--trim", type=float, default=0.0, help="trim [deg], positive bow down")
     water_args(t)

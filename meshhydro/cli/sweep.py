@@ -20,7 +20,8 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     c = src.condition
     bar = progress(args, len(heels), "solving")
     tr = heel_trace(src.hull, c.displacement, c.cog, heels, density=src.density, fsm=c.fsm, label=src.label,
-                    progress=bar, submerged_depth=src.depth_option())
+                    progress=bar, submerged_depth=src.depth_option(), load=c.load() if c.tanks else None,
+                    compartments=c.flooded)
     bar.close()
     n_frames = len(tr.heel) if args.view in ("3d", "both") else 0
     bar = progress(args, max(n_frames, 1), "rendering")
@@ -50,6 +51,7 @@ def _parse_compare_source(text: str) -> tuple[str, str | None]:
 def cmd_compare(args: argparse.Namespace) -> int:
     from ..loading import read_case
     from ..output import to_json, write_atomic
+    from ..tank_case import resolve_condition
     from ..plots import section_view
     from ..sweep import heel_trace
 
@@ -64,14 +66,15 @@ def cmd_compare(args: argparse.Namespace) -> int:
         if not path.lower().endswith(".toml"):
             raise InputError(f"{s}: compare takes case files (CASE.toml or CASE.toml@condition)")
         case = read_case(path)
-        cond = case.condition(name)
         key = os.path.abspath(case.mesh)
         if key not in cache:
             cache[key] = case.load_hull()
         hull = cache[key]
+        cond = resolve_condition(case, hull, name)
         label = f"{os.path.splitext(os.path.basename(path))[0]}: {cond.name}"
         traces.append(heel_trace(hull, cond.displacement, cond.cog, heels, density=case.density, fsm=cond.fsm,
-                                 label=label))
+                                 label=label, load=cond.load() if cond.tanks else None,
+                                 compartments=cond.flooded))
         hulls.append(hull)
         labels.append(label)
     section_view(hulls, traces, args.out, size=size, labels=labels)
