@@ -155,8 +155,8 @@ def float_analysis(inp: CaseInput) -> tuple[Equilibrium, Document]:
 
 # ---------------------------------------------------------------------------- righting curve
 
-ROW_KEYS = ["heel", "gz", "kn", "draft", "trim", "lcb", "tcb", "vcb", "up_x", "up_y", "up_z", "bm"]
-ROW_UNITS = {"heel": "deg", "gz": "m", "kn": "m", "draft": "m", "trim": "deg", "lcb": "m", "tcb": "m", "vcb": "m",
+ROW_KEYS = ["heel", "gz", "kn", "draft", "keel_depth", "trim", "lcb", "tcb", "vcb", "up_x", "up_y", "up_z", "bm"]
+ROW_UNITS = {"heel": "deg", "gz": "m", "kn": "m", "draft": "m", "keel_depth": "m", "trim": "deg", "lcb": "m", "tcb": "m", "vcb": "m",
              "bm": "m", "deck_freeboard": "m"}
 SUMMARY_UNITS = {
     "gm_upright": "m", "gm_from_slope": "m", "max_gz": "m", "angle_of_max_gz": "deg", "equilibrium_angle": "deg",
@@ -232,7 +232,7 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
     """A criteria set checked on the condition's GZ curve, and its report (verdict set)."""
     curve, sides = solve_curve(inp, heels, direction=direction, free_trim=free_trim, progress=progress)
     i0 = int(np.argmin(np.abs(curve.heel)))  # upright is always on the curve
-    upright = inp.hull.hydrostatics(float(curve.draft[i0] / curve.up[i0, 2]), heel=0.0, trim=float(curve.trim[i0]),
+    upright = inp.hull.hydrostatics(float(curve.draft[i0]), heel=0.0, trim=float(curve.trim[i0]),
                                     density=inp.density)
     rep = evaluate(curve, cset, sides=sides, hydrostatics=upright, openings=inp.openings)
     keys = ["id", "side", "criterion", "unit", "required", "attained", "margin", "result", "note"]

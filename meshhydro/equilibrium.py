@@ -12,7 +12,7 @@ from typing import Any
 import numpy as np
 
 from . import tolerances as tol
-from .errors import NotConvergedError
+from .errors import CapsizeError, MeshHydroError, NotConvergedError
 from .frames import SEA_WATER
 from .hull import Hull
 from .hydrostatics import Hydrostatics
@@ -26,7 +26,9 @@ from .solver import (
     newton,
     residuals,
     solve_volume,
+    upright_free_trim,
 )
+from .settle import settle
 
 
 @dataclass(frozen=True, eq=False)
@@ -137,12 +139,29 @@ def solve(hull: Hull, *, displacement: float, cog: np.ndarray, density: float = 
 def _loll(ev: Evaluator, v0: float, load: Load, upright: State) -> tuple[State, str]:
     """The loll position and its note, from an upright position with negative GMt."""
     st = find_loll(ev, v0, load, upright)
-    if st is None:
-        raise NotConvergedError("upright GM is negative and no stable heeled position was found: the vessel capsizes")
     gm0 = load_metacentric_heights(upright, load)[0]
+    if st is None:
+        return _settled(ev, v0, load, upright, f"upright GM is negative ({gm0:.4f} m)")
+    either = ev.hull.is_symmetric and abs(upright.heel) < tol.UPRIGHT and abs(load.centre(0.0, upright.trim)[1]) \
+        < tol.CENTRELINE
+    side = "either side, symmetric hull and load" if either else ("starboard" if st.heel > 0 else "port")
     note = (f"upright GM is negative ({gm0:.4f} m): the vessel lolls to "
-            f"{abs(st.heel):.2f}° (either side for a symmetric load); this is not a stable upright condition")
+            f"{abs(st.heel):.2f}° ({side}); this is not a stable upright condition")
     return st, note
+
+
+def _settled(ev: Evaluator, v0: float, load: Load, upright: State | None, why: str) -> tuple[State, str]:
+    """The heeled position read from the GZ curve when none is found near upright; CapsizeError when
+    GZ never turns righting, NotConvergedError naming the loll angle when Newton fails there."""
+    try:
+        s = settle(ev, v0, load, upright)
+    except NotConvergedError as exc:
+        raise NotConvergedError(f"{why}, and the upright free-trim position was not found either: {exc}") from None
+    if s.kind == "capsize":
+        raise CapsizeError(f"{why}: {s.describe()}")
+    if s.state is None:
+        raise NotConvergedError(f"{why}: {s.describe()}, but the position there did not converge")
+    return s.state, f"{why}: {s.describe()}"
 
 
 def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel: float = 0.0,
@@ -153,10 +172,10 @@ def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel
     st = solve_volume(ev, v0, start_heel, start_trim)
     res = newton(ev, v0, load, st, free_heel=True, free_trim=True)
     if not res.converged:
-        raise NotConvergedError(
-            f"equilibrium not found within tolerances after {res.iterations} iterations "
-            f"(volume residual {res.residual[0]:.2e}, levers {abs(res.residual[1]) * ev.L:.2e} m, "
-            f"{abs(res.residual[2]) * ev.L:.2e} m)")
+        why = f"no equilibrium near heel {start_heel:g}°"
+        st, note = _settled(ev, v0, load, None, why)
+        gm0 = _upright_gm(ev, v0, load)
+        return _result(hull, ev, load, st, rho, v0, res.iterations, gm0 is not None and gm0 < 0, note)
     st = res.state
     note = ""
     loll = bool(load_metacentric_heights(st, load)[0] < 0)
@@ -165,6 +184,14 @@ def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel
     elif abs(st.heel) > tol.LIST_NOTE:
         note = f"lists {abs(st.heel):.2f}° to {'starboard' if st.heel > 0 else 'port'}"
     return _result(hull, ev, load, st, rho, v0, res.iterations, loll, note)
+
+
+def _upright_gm(ev: Evaluator, v0: float, load: Load) -> float | None:
+    """GMt [m] at the upright free-trim position, None when it cannot be had."""
+    try:
+        return float(load_metacentric_heights(upright_free_trim(ev, v0, load), load)[0])
+    except MeshHydroError:
+        return None
 
 
 def _result(hull: Hull, ev: Evaluator, load: Load, st: State, rho: float, v0: float, iterations: int,

@@ -163,7 +163,7 @@ def section_view(hull: Hull | Sequence[Hull], traces: Sequence[Any], path: str, 
                 n = t.up[k]
                 d = np.array([n[2], -n[1]])  # waterline direction in (y, z)
                 d /= max(np.linalg.norm(d), 1e-12)
-                c = (K + t.draft[k] * n)[1:]
+                c = (K + t.keel_depth[k] * n)[1:]
                 q = c + (t.cob[k][1:] - c) @ d * d
                 a, b = q - 0.6 * ext * d, q + 0.6 * ext * d
                 ax.plot([a[0], b[0]], [a[1], b[1]], color="tab:cyan", lw=0.8, alpha=0.5)

@@ -45,6 +45,8 @@ SAME_ANGLE = 1e-12
 LOLL_STEP = 1.0
 LOLL_LAST = 90.0
 LOLL_TIE = 1e-6
+#: A stable position heeled beyond this [deg] is a capsize (on its side or inverted; common practice).
+CAPSIZE_ANGLE = 90.0
 #: Guard against division by an empty volume [m³].
 TINY_VOLUME = 1e-300
 
@@ -67,3 +69,12 @@ SYMMETRY = 1e-6
 CENTRELINE = 1e-12
 #: A listed equilibrium is reported when |heel| exceeds this [deg].
 LIST_NOTE = 0.01
+
+# ---------------------------------------------------------------- refined curve values (meshhydro.curve_probe)
+#: Bounded search for the angle of maximum GZ: abscissa tolerance [deg] and iteration limit.
+PEAK_XTOL = 1e-7
+PEAK_MAX_ITER = 200
+#: Root finder for vanishing, deck-edge, downflooding and equilibrium angles: tolerance [deg].
+ROOT_XTOL = 1e-10
+#: The draft T along hull z is undefined (reported as NaN) where |up_z| is below this (heel or trim 90°).
+DRAFT_DEFINED = 1e-9
