@@ -129,6 +129,7 @@ def _equilibrium_values(inp: CaseInput, eq: Equilibrium) -> list[Quantity]:
         q("draft", "draft at reference", eq.draft, "m"), q("x_ref", "reference x", inp.hull.x_ref, "m"),
         q("draft_fore", "draft fore (x = %.3f)" % eq.x_fore, eq.draft_fore, "m"),
         q("draft_aft", "draft aft (x = %.3f)" % eq.x_aft, eq.draft_aft, "m"),
+        q("trim_m", "trim (fore - aft drafts)", eq.trim_m, "m"),
         q("heel", "heel (+ starboard down)", eq.heel, "deg"), q("trim", "trim (+ bow down)", eq.trim, "deg"),
         q("volume", "volume", eq.volume, "m³"), q("lcb", "LCB", eq.cob[0], "m"), q("tcb", "TCB", eq.cob[1], "m"),
         q("vcb", "VCB (KB)", eq.cob[2], "m"), q("bmt", "BMt", h.bmt, "m"), q("kmt", "KMt", h.kmt, "m"),

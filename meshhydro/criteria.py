@@ -206,6 +206,9 @@ def _gz_max_beyond(ctx: Context, p: AngleParams) -> Outcome:
 
 @register("angle_of_max", unit="deg")
 def _angle_of_max(ctx: Context, p: NoParams) -> Outcome:
+    if ctx.curve.max_beyond_range(ctx.sign):
+        return Outcome(None, f"GZ still rises at {ctx.top:g}°: the maximum lies beyond the computed range",
+                       at_least=ctx.top)
     return Outcome(ctx.curve.max_gz(ctx.sign)[1])
 
 

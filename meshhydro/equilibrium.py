@@ -12,7 +12,7 @@ from typing import Any
 import numpy as np
 
 from . import tolerances as tol
-from .errors import CapsizeError, MeshHydroError, NotConvergedError
+from .errors import CannotFloatError, CapsizeError, MeshHydroError, NotConvergedError
 from .frames import SEA_WATER
 from .hull import Hull
 from .hydrostatics import Hydrostatics
@@ -28,7 +28,7 @@ from .solver import (
     solve_volume,
     upright_free_trim,
 )
-from .settle import settle
+from .settle import check_centre, settle
 
 
 @dataclass(frozen=True, eq=False)
@@ -40,8 +40,11 @@ class Equilibrium:
     draft : float [m]
         Draft at the reference point (x_ref, 0), above the baseline z = 0.
     draft_fore, draft_aft : float [m]
-        Drafts on the centreline at the fore and aft ends of the waterline
-        (``x_fore``, ``x_aft``).
+        Drafts T along hull z on the centreline at ``x_fore`` and ``x_aft``: the hull's ends, or the
+        perpendiculars / draft marks given to the hull (``hull.x_fore``, ``hull.x_aft``). Negative
+        when that end is out of the water.
+    trim_m : float [m]
+        Trim in metres, draft fore minus draft aft (positive bow down).
     heel, trim : float [deg]
         Positive starboard down, positive bow down.
     volume : float [m³]
@@ -75,6 +78,7 @@ class Equilibrium:
     draft_aft: float
     x_fore: float
     x_aft: float
+    trim_m: float
     heel: float
     trim: float
     volume: float
@@ -95,7 +99,7 @@ class Equilibrium:
 
     def to_dict(self) -> dict[str, Any]:
         d = {k: getattr(self, k) for k in (
-            "displacement", "density", "draft", "draft_fore", "draft_aft", "x_fore", "x_aft", "heel", "trim",
+            "displacement", "density", "draft", "draft_fore", "draft_aft", "x_fore", "x_aft", "trim_m", "heel", "trim",
             "volume", "gmt", "gml", "stable", "loll", "iterations", "evaluations",
             "residual_volume", "residual_lever", "note")}
         d["cob"] = self.cob.tolist()
@@ -168,6 +172,7 @@ def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel
                start_trim: float = 0.0) -> Equilibrium:
     """Equilibrium for any :class:`~meshhydro.load.Load` (see :func:`solve`)."""
     rho, v0 = check_load(hull, load.displacement, density)
+    check_centre(hull, load)
     ev = Evaluator(hull)
     st = solve_volume(ev, v0, start_heel, start_trim)
     res = newton(ev, v0, load, st, free_heel=True, free_trim=True)
@@ -200,16 +205,22 @@ def _result(hull: Hull, ev: Evaluator, load: Load, st: State, rho: float, v0: fl
     gmt, gml = load_metacentric_heights(st, load)
     r = residuals(st, v0, load, ev.L)
     n = st.cut.normal
-    xa, xf = float(st.cut.waterline_x[0]), float(st.cut.waterline_x[1])
+    if abs(st.heel) > tol.CAPSIZE_ANGLE:
+        raise CapsizeError(f"the only balance found is heeled {abs(st.heel):.2f}° to "
+                           f"{'starboard' if st.heel > 0 else 'port'}, beyond 90°: the vessel capsizes")
+    if abs(st.trim) > tol.TRIM_LIMIT:
+        raise CannotFloatError(f"the only balance found is trimmed {st.trim:.2f}°, beyond {tol.TRIM_LIMIT:g}°: the "
+                               f"vessel would float on end; check the longitudinal centre of gravity")
+    xa, xf = hull.x_aft, hull.x_fore
 
-    def draft_at(x: float) -> float:  # z of the waterplane on the centreline at x
+    def draft_at(x: float) -> float:  # T along hull z at (x, 0): the plane n . (p - K) = depth
         return float((st.depth + n[0] * (hull.x_ref - x)) / n[2])
 
     solid = np.array(getattr(load, "cog", g), dtype=float)
     hs = hull.hydrostatics(st.draft, heel=st.heel, trim=st.trim, density=rho)
     return Equilibrium(
         displacement=float(load.displacement), density=rho, draft=float(st.draft), draft_fore=draft_at(xf),
-        draft_aft=draft_at(xa), x_fore=xf, x_aft=xa, heel=st.heel, trim=st.trim, volume=st.cut.volume,
+        draft_aft=draft_at(xa), x_fore=xf, x_aft=xa, trim_m=draft_at(xf) - draft_at(xa), heel=st.heel, trim=st.trim, volume=st.cut.volume,
         cob=st.cut.centroid.copy(), up=n.copy(), cog=solid, cog_fluid=np.array(g, dtype=float),
         gmt=float(gmt), gml=float(gml), stable=bool(gmt > 0 and gml > 0), loll=loll, hydrostatics=hs,
         iterations=iterations, evaluations=ev.count, residual_volume=float(abs(r[0])),

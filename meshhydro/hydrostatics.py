@@ -28,6 +28,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from . import kernel
+from . import tolerances as tol
 from .errors import CannotFloatError, InputError
 from .frames import SEA_WATER, up_vector
 
@@ -119,6 +120,9 @@ def compute(
             raise InputError(f"{name} must be a finite number, got {val!r}")
     rho = check_density(density)
     n = up_vector(heel, trim)
+    if abs(n[2]) < tol.DRAFT_DEFINED:
+        raise InputError(f"a draft does not fix the waterplane at heel {heel:g}°, trim {trim:g}°: the hull z axis "
+                         f"lies in the waterplane there (draft T is measured along it)")
     p = np.array([x_ref, 0.0, float(draft)])
     c = kernel.cut(prep, p, n)
     if c.volume <= 0.0 or c.waterplane_area <= 0.0:

@@ -8,7 +8,7 @@ when upright is balanced) and stops at the first angle where GZ turns righting (
 equilibrium: GZ crosses zero from heeling to righting, refined by Brent's method on the true
 geometry). When GZ never turns righting up to 180° the vessel capsizes.
 
-Public: :class:`Settled`, :func:`settle`.
+Public: :class:`Settled`, :func:`settle`, :func:`check_centre`.
 """
 from __future__ import annotations
 
@@ -17,7 +17,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import tolerances as tol
-from .errors import MeshHydroError
+from .errors import InputError, MeshHydroError
+from .hull import Hull
 from .frames import transverse_direction
 from .load import Load
 from .solver import Evaluator, State, newton, step_angles, upright_free_trim
@@ -54,6 +55,19 @@ class Settled:
             return (f"the vessel capsizes to {self.side}: GZ stays heeling until {self.angle:.2f}°, beyond 90°, "
                     f"where it would float on its side or inverted (from its GZ curve)")
         return f"the vessel heels to {self.angle:.2f}° to {self.side}, where GZ turns righting (from its GZ curve)"
+
+
+def check_centre(hull: Hull, load: Load) -> None:
+    """InputError when the load's G (upright, level) lies outside the hull's extent in x or y: B lies
+    within the hull, so such a load could balance only on end or on its side (a misplaced G)."""
+    g = np.asarray(load.centre(0.0, 0.0), float)
+    lo, hi = hull.bounds
+    for i, name, what in ((0, "x", "length"), (1, "y", "breadth")):
+        slack = tol.SYMMETRY * max(hull.size, tol.TINY_LENGTH)
+        if not (lo[i] - slack <= g[i] <= hi[i] + slack):
+            raise InputError(f"centre of gravity {name} = {g[i]:g} m lies outside the hull's {what} "
+                             f"({name} {lo[i]:.3f}..{hi[i]:.3f} m): it could balance only on end or on its side; "
+                             f"check the centre of gravity")
 
 
 def _gz(load: Load, st: State) -> float:

@@ -28,6 +28,7 @@ from .frames import SEA_WATER, transverse_direction
 from .hull import Hull
 from .load import FixedLoad, Load
 from .curve_probe import CurveProbe, refine_max, refine_root
+from .settle import check_centre
 from .solver import (
     Evaluator,
     State,
@@ -372,6 +373,7 @@ def curve_for_load(hull: Hull, load: Load, *, heels: Sequence[float] | None = No
                    progress: Callable[[], object] | None = None) -> RightingCurve:
     """GZ curve for any :class:`~meshhydro.load.Load` (see :func:`righting_curve`); G is taken at each angle."""
     rho, v0 = check_load(hull, load.displacement, density)
+    check_centre(hull, load)
     hs = _heel_set(heels)
     ev = Evaluator(hull)
     up0 = upright_free_trim(ev, v0, load)

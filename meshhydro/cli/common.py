@@ -119,6 +119,8 @@ def source_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--fsm", type=float, default=0.0, help="free-surface moment [t·m] (raises G by FSM/Δ)")
     g.add_argument("--opening", action="append", default=[], metavar="NAME=X,Y,Z",
                    help="an opening for the downflooding angle (repeatable)")
+    g.add_argument("--x-aft", type=float, help="x of the aft perpendicular / draft mark [m] (default the hull's aft end)")
+    g.add_argument("--x-fore", type=float, help="x of the fore perpendicular / draft mark [m] (default the fore end)")
     water_args(p)
     mesh_args(p)
 
@@ -148,7 +150,8 @@ def density_override(args: argparse.Namespace) -> float | None:
 def load_mesh(args: argparse.Namespace, path: str | None = None) -> FloatingHull:
     return load_hull(path or args.mesh, units=args.units, forward=args.forward, up=args.up,
                      offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
-                     merge_overlaps=args.merge_overlaps)
+                     merge_overlaps=args.merge_overlaps, x_aft=getattr(args, "x_aft", None),
+                     x_fore=getattr(args, "x_fore", None))
 
 
 def is_case(path: str) -> bool:
@@ -160,6 +163,8 @@ def load_source(args: argparse.Namespace) -> CaseInput:
     if is_case(args.source):
         if args.displacement is not None or args.cog:
             raise InputError("give either a case file or --displacement/--cog with a mesh, not both")
+        if args.x_aft is not None or args.x_fore is not None:
+            raise InputError("--x-aft/--x-fore go with a mesh; a case file gives x_aft/x_fore in its [hull]")
         return from_case(args.source, args.condition, density=density_override(args))
     if args.displacement is None or not args.cog:
         raise InputError(f"{args.source}: a mesh needs --displacement T and --cog X,Y,Z (or use a case file)")
