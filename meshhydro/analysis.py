@@ -21,7 +21,7 @@ from . import tolerances as tol
 from .criteria import CAUTION, CriteriaSet, Report, evaluate
 from .document import Column, Document, Figure, Quantity, Section, Table
 from .equilibrium import Equilibrium
-from .errors import InputError
+from .errors import InputError, OpenRimError
 from .frames import SEA_WATER
 from .hydrostatics import FIELDS, UNITS
 from .loading import Condition, Opening, condition, read_case
@@ -162,6 +162,7 @@ ROW_UNITS = {"heel": "deg", "gz": "m", "kn": "m", "draft": "m", "keel_depth": "m
 SUMMARY_UNITS = {
     "gm_upright": "m", "gm_from_slope": "m", "max_gz": "m", "angle_of_max_gz": "deg", "equilibrium_angle": "deg",
     "vanishing_angle": "deg", "range_of_stability": "deg", "deck_edge_angle": "deg", "downflooding_angle": "deg",
+    "swamping_angle": "deg",
     "area_0_30": "m·rad", "area_0_40": "m·rad", "area_30_40": "m·rad",
 }
 
@@ -286,11 +287,27 @@ def cross_analysis(hull: FloatingHull, displacements: np.ndarray, heels: np.ndar
 def table_analysis(hull: FloatingHull, drafts: np.ndarray, *, heel: float = 0.0, trim: float = 0.0,
                    density: float = SEA_WATER) -> tuple[list[dict[str, float]], Document]:
     """Hydrostatic particulars over ``drafts`` [m] at one heel and trim [deg], and their report."""
-    rows = [h.to_dict() for h in hull.table(drafts, heel=heel, trim=trim, density=density)]
+    rim = hull.rim_draft(heel, trim)
+    below = [float(t) for t in drafts if rim is None or t <= rim]
+    if not below:
+        raise OpenRimError(f"every draft asked for reaches the open rim of the mesh (at draft {rim:.4f} m, heel "
+                           f"{heel:g}°, trim {trim:g}°)")
+    rows = []
+    for t in below:
+        try:
+            rows.append(hull.hydrostatics(t, heel=heel, trim=trim, density=density).to_dict())
+        except OpenRimError:
+            if rows:  # the rim lies at this draft within rounding: the table stops before it
+                break
+            raise
+    below = [r["draft"] for r in rows]
     digits = {"cb": 4, "cp": 4, "cm": 4, "cwp": 4, "heel": 1, "trim": 2}
     cols = [Column(k, k, UNITS[k], digits.get(k, 3)) for k in FIELDS]
     table = Table("hydrostatics", "", cols, rows, text_keys=[k for k in FIELDS if k not in ("heel", "trim")])
     sec = Section("hydrostatics", "", tables=[table])
+    if len(below) < len(drafts):
+        sec.notes.append(f"note: the table stops at draft {below[-1]:.4f} m: the water reaches the open rim of the "
+                         f"mesh at draft {rim:.4f} m; {len(drafts) - len(below)} deeper draft(s) left out")
     sec.figures.append(Figure("curves", f"Hydrostatic curves: {os.path.basename(hull.name)} "
                                         f"(ρ = {density:g} t/m³, heel {heel:g}°, trim {trim:g}°)",
                               "hydrostatic_curves", rows))

@@ -8,7 +8,10 @@ the floating position at any heel on the true geometry (same load, same trim rul
 from the nearest computed position), so the derived values are refined by a bounded scalar
 search (Brent's method with golden-section steps) and by Brent's root finder.
 
-Public: :class:`CurveProbe`, :func:`refine_max`, :func:`refine_root`.
+An open hull (a boat with no deck) ends its curve at the swamping angle, where the water
+reaches the rim with the displacement held (:func:`swamping_state`).
+
+Public: :class:`CurveProbe`, :func:`refine_max`, :func:`refine_root`, :func:`swamping_state`.
 """
 from __future__ import annotations
 
@@ -18,6 +21,7 @@ from typing import Callable
 import numpy as np
 
 from . import tolerances as tol
+from .errors import OpenRimError
 from .frames import transverse_direction
 from .load import Load
 from .solver import Evaluator, State, freeboard, step_angles
@@ -106,3 +110,17 @@ def refine_root(f: Callable[[float], float], lo: float, hi: float, flo: float, f
     if not (math.copysign(1.0, flo) != math.copysign(1.0, fhi)):
         raise ValueError("refine_root: no sign change")
     return float(brentq(f, lo, hi, xtol=tol.ROOT_XTOL, rtol=4 * np.finfo(float).eps, maxiter=tol.BRENT_MAX_ITER))
+
+
+def swamping_state(ev: Evaluator, v0: float, load: Load, free_trim: bool, good: State, bad_heel: float) -> State:
+    """The position at the swamping angle of an open hull: the last heel between ``good.heel`` (solved)
+    and ``bad_heel`` [deg] (water over the rim) at which the displacement is still held below the rim,
+    by bisection to :data:`~meshhydro.tolerances.SWAMP_XTOL` degrees."""
+    lo_st, hi = good, float(bad_heel)
+    while abs(hi - lo_st.heel) > tol.SWAMP_XTOL:
+        mid = 0.5 * (lo_st.heel + hi)
+        try:
+            lo_st = step_angles(ev, v0, load, np.array([mid]), lo_st, free_trim)[0][0]
+        except OpenRimError:
+            hi = mid
+    return lo_st

@@ -154,6 +154,18 @@ class Hull:
         """Hydrostatic particulars at ``draft`` [m], heel and trim [deg], density [t/m³]."""
         return _hs.compute(self._prep, draft, heel=heel, trim=trim, density=density, x_ref=self.x_ref)
 
+    def rim_draft(self, heel: float = 0.0, trim: float = 0.0) -> float | None:
+        """Draft T [m] at which the water first reaches an open rim at this heel and trim [deg]
+        (None for a closed mesh): the rim's lowest point along the waterplane normal."""
+        rim = self._prep.rim
+        if len(rim) == 0:
+            return None
+        n = up_vector(heel, trim)
+        if abs(n[2]) < tol.DRAFT_DEFINED:
+            return None
+        depth = float(((rim + self._prep.origin - np.array([self.x_ref, 0.0, 0.0])) @ n).min())
+        return depth / float(n[2])
+
     def table(self, drafts: Sequence[float], heel: float = 0.0, trim: float = 0.0,
               density: float = SEA_WATER) -> list[_hs.Hydrostatics]:
         """Hydrostatics at each draft of ``drafts`` [m]."""

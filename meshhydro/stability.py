@@ -27,7 +27,7 @@ from .errors import InputError, MeshHydroError
 from .frames import SEA_WATER, transverse_direction
 from .hull import Hull
 from .load import FixedLoad, Load
-from .curve_probe import CurveProbe, refine_max, refine_root
+from .curve_probe import CurveProbe, refine_max, refine_root, swamping_state
 from .settle import check_centre
 from .solver import (
     Evaluator,
@@ -39,6 +39,10 @@ from .solver import (
     step_angles,
     upright_free_trim,
 )
+
+
+#: Name of the "opening" an open hull floods through: its rim (the swamping angle).
+SWAMPING = "open rim (swamping)"
 
 
 @dataclass(frozen=True, eq=False)
@@ -102,6 +106,8 @@ class RightingCurve:
     #: Solves the true position at any heel (None for a curve built from points alone).
     probe: CurveProbe | None = field(default=None, repr=False)
     _memo: dict = field(default_factory=dict, repr=False)
+    #: open hull: side (+1, -1) -> swamping angle [deg], where the water reaches the rim and the curve ends
+    swamping: dict[int, float] = field(default_factory=dict)
 
     # ------------------------------------------------------------ interpolation
     def interpolant(self) -> Any:
@@ -197,7 +203,10 @@ class RightingCurve:
         return best
 
     def max_beyond_range(self, sign: int = 1) -> bool:
-        """True when GZ still rises at the last computed angle on that side: its maximum lies beyond."""
+        """True when GZ still rises at the last computed angle on that side: its maximum lies beyond
+        (never for a side that ends at its swamping angle: an open hull's curve has no beyond)."""
+        if sign in self.swamping:
+            return False
         x, y = self.side(sign)
         return bool(len(y) >= 2 and int(np.argmax(y)) == len(y) - 1 and y[-1] > y[-2])
 
@@ -269,7 +278,7 @@ class RightingCurve:
         return self._refined(("flood", sign), lambda: self._downflooding(sign))
 
     def _downflooding(self, sign: int) -> tuple[float | None, str | None]:
-        best: tuple[float | None, str | None] = (None, None)
+        best: tuple[float | None, str | None] = (self.swamping.get(sign), SWAMPING if sign in self.swamping else None)
         for name, fb in self.openings.items():
             pts = self.probe.points.get(f"opening:{name}") if self.probe is not None else None
             a = self._first_immersion(fb, sign, pts)
@@ -296,6 +305,8 @@ class RightingCurve:
             "downflooding_angle": flood,
             "downflooding_opening": which,
         }
+        if sign in self.swamping:
+            out["swamping_angle"] = self.swamping[sign]
         top = float(np.max(self.heel * sign))
         for a, b in ((0, 30), (0, 40), (30, 40)):
             if top >= b:
@@ -379,16 +390,27 @@ def curve_for_load(hull: Hull, load: Load, *, heels: Sequence[float] | None = No
     up0 = upright_free_trim(ev, v0, load)
     start_cost = ev.count
     solved: dict[float, tuple[State, int]] = {}
-    for part in (hs[hs >= 0], hs[hs < 0][::-1]):
+    swamp: dict[int, float] = {}
+    open_hull = not hull.report.closed
+    for sign, part in ((1, hs[hs >= 0]), (-1, hs[hs < 0][::-1])):
         if len(part):
-            for h, (st, n) in zip(part, step_angles(ev, v0, load, part, up0, free_trim, progress), strict=True):
+            got = step_angles(ev, v0, load, part, up0, free_trim, progress, stop_at_rim=open_hull)
+            for h, (st, n) in zip(part, got):
                 solved[float(h)] = (st, n)
+            if len(got) < len(part):  # the water reaches the open rim: the curve ends at the swamping angle
+                before = ev.count
+                st = swamping_state(ev, v0, load, free_trim, got[-1][0] if got else up0, float(part[len(got)]))
+                solved[st.heel] = (st, ev.count - before)
+                swamp[sign] = abs(st.heel)
+    hs = np.array(sorted(solved))
     k0 = float(hs[np.argmin(np.abs(hs))])
     st, n = solved[k0]
     solved[k0] = (st, n + start_cost)
     states = [solved[float(h)][0] for h in hs]
-    return _assemble(hull, ev, load, hs, states, np.array([solved[float(h)][1] for h in hs]), rho, free_trim,
-                     openings, up0 if abs(k0) < tol.UPRIGHT else None)
+    curve = _assemble(hull, ev, load, hs, states, np.array([solved[float(h)][1] for h in hs]), rho, free_trim,
+                      openings, up0 if abs(k0) < tol.UPRIGHT else None)
+    curve.swamping.update(swamp)
+    return curve
 
 
 def _assemble(hull: Hull, ev: Evaluator, load: Load, hs: np.ndarray, states: list[State], evals: np.ndarray,

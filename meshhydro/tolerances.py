@@ -78,3 +78,5 @@ PEAK_MAX_ITER = 200
 ROOT_XTOL = 1e-10
 #: The draft T along hull z is undefined (reported as NaN) where |up_z| is below this (heel or trim 90°).
 DRAFT_DEFINED = 1e-9
+#: Bisection tolerance of the swamping angle of an open hull [deg].
+SWAMP_XTOL = 1e-9
