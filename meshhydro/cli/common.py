@@ -97,6 +97,8 @@ def mesh_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--offset", default="0,0,0", help="X,Y,Z added after scaling and axes [m]")
     g.add_argument("--flip-inside-out", action="store_true", help="flip bodies found inside out (explicit repair)")
     g.add_argument("--merge-overlaps", action="store_true", help="union overlapping bodies (explicit repair)")
+    g.add_argument("--close-holes", action="store_true",
+                   help="fill one-triangle and quad holes (explicit repair; the change is reported)")
 
 
 def out_args(p: argparse.ArgumentParser, formats: Sequence[str] = ("text", "csv", "json")) -> None:
@@ -150,7 +152,8 @@ def density_override(args: argparse.Namespace) -> float | None:
 def load_mesh(args: argparse.Namespace, path: str | None = None) -> FloatingHull:
     return load_hull(path or args.mesh, units=args.units, forward=args.forward, up=args.up,
                      offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
-                     merge_overlaps=args.merge_overlaps, x_aft=getattr(args, "x_aft", None),
+                     merge_overlaps=args.merge_overlaps, close_holes=args.close_holes,
+                     x_aft=getattr(args, "x_aft", None),
                      x_fore=getattr(args, "x_fore", None))
 
 
@@ -165,6 +168,8 @@ def load_source(args: argparse.Namespace) -> CaseInput:
             raise InputError("give either a case file or --displacement/--cog with a mesh, not both")
         if args.x_aft is not None or args.x_fore is not None:
             raise InputError("--x-aft/--x-fore go with a mesh; a case file gives x_aft/x_fore in its [hull]")
+        if args.close_holes:
+            raise InputError("--close-holes goes with a mesh; a case file gives close_holes = true in its [hull]")
         return from_case(args.source, args.condition, density=density_override(args))
     if args.displacement is None or not args.cog:
         raise InputError(f"{args.source}: a mesh needs --displacement T and --cog X,Y,Z (or use a case file)")
