@@ -199,12 +199,16 @@ def _derived_section(curve: RightingCurve, sides: tuple[int, ...]) -> Section:
     sec = Section("derived", "")
     for s in sides:
         sm = curve.summary(s)
+        if sm.get("max_gz_beyond_range"):
+            sec.notes.append(f"note: heeling to {sm['side']}, GZ still rises at the last computed angle: "
+                             f"its maximum lies beyond the range")
         vals = [Quantity(k, k.replace("_", " "), sm.get(k), SUMMARY_UNITS[k]) for k in SUMMARY_UNITS if k in sm]
         if sm.get("downflooding_opening"):
             vals.append(Quantity("downflooding_opening", "downflooding opening", sm["downflooding_opening"]))
         sec.sections.append(Section(f"derived_{sm['side']}", f"derived values, heeling to {sm['side']}:",
                                     values=vals))
-    sec.notes.append("areas: exact integrals of the not-a-knot cubic spline through the computed points.")
+    sec.notes.append("areas: exact integrals of the not-a-knot cubic spline through the computed points; "
+                     "maximum GZ and the angles are solved on the true geometry between them.")
     sec.notes.append(f"kernel evaluations per angle: {curve.evaluations.mean():.2f} on average")
     return sec
 
