@@ -93,3 +93,13 @@ def test_close_holes_on_request():
     ref = trimesh.Trimesh(h.vertices, h.faces, process=False)
     assert h.total_volume == pytest.approx(ref.volume, rel=1e-12)  # reference: trimesh's volume
     assert h.hydrostatics(0.5).volume == pytest.approx(L * B * 0.5, rel=1e-12)
+
+
+def test_criteria_count_area_only_to_swamping(boat):
+    # a heavier load swamps before 30°: the 0-30° area is counted to the swamping angle (nothing rights beyond)
+    c = boat.righting_curve(8.0, (3.0, 0.0, 0.4), heels=np.arange(0.0, 91.0, 1.0))
+    phi = c.swamping[1]
+    assert phi < 30.0
+    rep = evaluate(c, IMO_2008_GENERAL, sides=(1,))
+    r = next(r for r in rep.results if r.id == "2.2.1.1")
+    assert r.attained == pytest.approx(c.area(0.0, phi), rel=1e-12) and "swamps" in r.note
