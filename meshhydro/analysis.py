@@ -157,7 +157,8 @@ def float_analysis(inp: CaseInput) -> tuple[Equilibrium, Document]:
 # ---------------------------------------------------------------------------- righting curve
 
 ROW_KEYS = ["heel", "gz", "kn", "draft", "keel_depth", "trim", "lcb", "tcb", "vcb", "up_x", "up_y", "up_z", "bm"]
-ROW_UNITS = {"heel": "deg", "gz": "m", "kn": "m", "draft": "m", "keel_depth": "m", "trim": "deg", "lcb": "m", "tcb": "m", "vcb": "m",
+ROW_UNITS = {"heel": "deg", "gz": "m", "kn": "m", "draft": "m", "keel_depth": "m", "trim": "deg", "lcb": "m",
+             "tcb": "m", "vcb": "m",
              "bm": "m", "deck_freeboard": "m"}
 SUMMARY_UNITS = {
     "gm_upright": "m", "gm_from_slope": "m", "max_gz": "m", "angle_of_max_gz": "deg", "equilibrium_angle": "deg",

@@ -12,7 +12,7 @@ from typing import Any
 import numpy as np
 
 from . import tolerances as tol
-from .errors import CannotFloatError, CapsizeError, MeshHydroError, NotConvergedError
+from .errors import CannotFloatError, CapsizeError, MeshHydroError, NotConvergedError, OpenRimError
 from .frames import SEA_WATER
 from .hull import Hull
 from .hydrostatics import Hydrostatics
@@ -160,7 +160,9 @@ def _settled(ev: Evaluator, v0: float, load: Load, upright: State | None, why: s
     try:
         s = settle(ev, v0, load, upright)
     except NotConvergedError as exc:
-        raise NotConvergedError(f"{why}, and the upright free-trim position was not found either: {exc}") from None
+        raise NotConvergedError(f"{why}; {exc}") from None
+    except OpenRimError as exc:
+        raise OpenRimError(f"{why}; {exc}") from None
     if s.kind == "capsize":
         raise CapsizeError(f"{why}: {s.describe()}")
     if s.state is None:
@@ -220,7 +222,8 @@ def _result(hull: Hull, ev: Evaluator, load: Load, st: State, rho: float, v0: fl
     hs = hull.hydrostatics(st.draft, heel=st.heel, trim=st.trim, density=rho)
     return Equilibrium(
         displacement=float(load.displacement), density=rho, draft=float(st.draft), draft_fore=draft_at(xf),
-        draft_aft=draft_at(xa), x_fore=xf, x_aft=xa, trim_m=draft_at(xf) - draft_at(xa), heel=st.heel, trim=st.trim, volume=st.cut.volume,
+        draft_aft=draft_at(xa), x_fore=xf, x_aft=xa, trim_m=draft_at(xf) - draft_at(xa), heel=st.heel,
+        trim=st.trim, volume=st.cut.volume,
         cob=st.cut.centroid.copy(), up=n.copy(), cog=solid, cog_fluid=np.array(g, dtype=float),
         gmt=float(gmt), gml=float(gml), stable=bool(gmt > 0 and gml > 0), loll=loll, hydrostatics=hs,
         iterations=iterations, evaluations=ev.count, residual_volume=float(abs(r[0])),

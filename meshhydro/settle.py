@@ -17,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import tolerances as tol
-from .errors import InputError, MeshHydroError
+from .errors import InputError, MeshHydroError, NotConvergedError, OpenRimError
 from .hull import Hull
 from .frames import transverse_direction
 from .load import Load
@@ -80,10 +80,15 @@ def _walk(ev: Evaluator, v0: float, load: Load, upright: State, sign: int) -> tu
 
     prev_st, prev_y = upright, sign * _gz(load, upright)
     for a in np.arange(tol.LOLL_STEP, 180.0 + tol.LOLL_STEP / 2, tol.LOLL_STEP):
+        side = "starboard" if sign > 0 else "port"
         try:
             st = step_angles(ev, v0, load, np.array([sign * a]), prev_st, True)[0][0]
-        except MeshHydroError:
-            return None
+        except OpenRimError:
+            raise OpenRimError(f"heeling to {side}, the water reaches the open rim near {a:g}° before GZ turns "
+                               f"righting: the boat swamps") from None
+        except NotConvergedError as exc:
+            raise NotConvergedError(f"heeling to {side}, the GZ curve could not be followed past "
+                                    f"{a - tol.LOLL_STEP:g}°: {exc}") from None
         y = sign * _gz(load, st)
         if prev_y <= 0 < y:
             lo, hi = abs(prev_st.heel), float(a)
