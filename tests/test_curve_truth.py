@@ -218,3 +218,29 @@ def test_outrigger_on_centreline_lolls_or_capsizes_by_name(outrigger):
                 assert y[1] < 0 < y[2]  # GZ turns righting at the reported angle
                 named += 1
     assert named >= 3
+
+
+def test_loll_side_named_on_asymmetric_hull(outrigger):
+    # negative upright GM on an asymmetric hull: the note names the side, never "either side"
+    # (reference for the angle: the GZ curve of the same load changes sign there)
+    g = (4.0, 0.0, 1.2)
+    eq = outrigger.equilibrium(0.4, g)
+    if abs(eq.heel) < 0.1:
+        pytest.skip("this load floats upright")
+    side = "starboard" if eq.heel > 0 else "port"
+    assert side in eq.note and "either side" not in eq.note
+
+
+def test_cli_marks_and_trim_in_metres(tmp_path):
+    import json
+    mesh = os.path.join(ROOT, "meshes", "brindle_barge.stl")
+    out = tmp_path / "f.json"
+    p = subprocess.run([sys.executable, "-m", "meshhydro", "float", mesh, "--displacement", "40", "--cog", "5.5,0,1",
+                        "--x-aft", "0.5", "--x-fore", "11.5", "--format", "json", "--out", str(out)],
+                       capture_output=True, text=True, cwd=ROOT)
+    assert p.returncode == 0, p.stderr
+    eq = json.loads(out.read_text())["equilibrium"]
+    assert (eq["x_aft"], eq["x_fore"]) == (0.5, 11.5)
+    # plane geometry: the drafts at the marks differ by (x_fore - x_aft) tan(trim)
+    assert eq["trim_m"] == pytest.approx(11.0 * math.tan(math.radians(eq["trim"])), rel=1e-9)
+    assert eq["draft_fore"] - eq["draft_aft"] == pytest.approx(eq["trim_m"], abs=1e-12)
