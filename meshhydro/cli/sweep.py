@@ -34,6 +34,8 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     for k in range(len(tr.heel)):
         print(f"  {tr.heel[k]:7.2f}°  GZ {tr.gz[k]:+.4f} m  B ({tr.cob[k][1]:+.4f}, {tr.cob[k][2]:.4f}) m  "
               f"BM {tr.bm[k]:.4f} m")
+    for s, a in sorted(tr.curve.swamping.items()):
+        print(f"  ends at the swamping angle {s * a:.4f}°: the water reaches the open rim there")
     print(f"wrote {args.out}: {frames} frames, " + ", ".join(others))
     return 0
 
