@@ -103,3 +103,28 @@ def test_criteria_count_area_only_to_swamping(boat):
     rep = evaluate(c, IMO_2008_GENERAL, sides=(1,))
     r = next(r for r in rep.results if r.id == "2.2.1.1")
     assert r.attained == pytest.approx(c.area(0.0, phi), rel=1e-12) and "swamps" in r.note
+
+
+def test_cli_close_holes_and_refusals(tmp_path):
+    import os
+    import subprocess
+    import sys
+
+    from conftest import ROOT
+
+    b = trimesh.creation.box(extents=(L, B, D), transform=trimesh.transformations.translation_matrix((L / 2, 0, D / 2)))
+    b = b.subdivide()
+    low = int(np.flatnonzero(b.triangles_center[:, 2] < 1e-9)[0])
+    p = tmp_path / "holed.stl"
+    trimesh.Trimesh(b.vertices, np.delete(b.faces, low, axis=0), process=False).export(p)
+
+    def run(*a):
+        r = subprocess.run([sys.executable, "-m", "meshhydro", *a], capture_output=True, text=True, cwd=ROOT)
+        return r.returncode, r.stdout, r.stderr
+
+    code, out, _ = run("check", str(p), "--close-holes")
+    assert code == 0 and "closed holes as asked" in out and "1 face(s) added" in out
+    case = os.path.join(ROOT, "meshes", "cases", "brindle_barge.toml")
+    for args in (("float", case, "--close-holes"), ("float", case, "--x-aft", "1")):
+        code, _, err = run(*args)
+        assert code == 2 and "case file" in err and "Traceback" not in err

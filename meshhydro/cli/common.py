@@ -78,6 +78,12 @@ def parse_size(text: str, what: str = "--size") -> tuple[int, int]:
     return w, h
 
 
+def marks_args(p: argparse.ArgumentParser) -> None:
+    """Where drafts fore and aft are read, for a mesh (a case file gives them in its [hull])."""
+    p.add_argument("--x-aft", type=float, help="x of the aft perpendicular / draft mark [m] (default the hull's aft end)")
+    p.add_argument("--x-fore", type=float, help="x of the fore perpendicular / draft mark [m] (default the fore end)")
+
+
 def parse_opening(spec: str) -> Opening:
     """``'NAME=X,Y,Z'`` -> an Opening."""
     if "=" not in spec:
@@ -121,8 +127,6 @@ def source_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--fsm", type=float, default=0.0, help="free-surface moment [t·m] (raises G by FSM/Δ)")
     g.add_argument("--opening", action="append", default=[], metavar="NAME=X,Y,Z",
                    help="an opening for the downflooding angle (repeatable)")
-    g.add_argument("--x-aft", type=float, help="x of the aft perpendicular / draft mark [m] (default the hull's aft end)")
-    g.add_argument("--x-fore", type=float, help="x of the fore perpendicular / draft mark [m] (default the fore end)")
     water_args(p)
     mesh_args(p)
 
@@ -166,7 +170,7 @@ def load_source(args: argparse.Namespace) -> CaseInput:
     if is_case(args.source):
         if args.displacement is not None or args.cog:
             raise InputError("give either a case file or --displacement/--cog with a mesh, not both")
-        if args.x_aft is not None or args.x_fore is not None:
+        if getattr(args, "x_aft", None) is not None or getattr(args, "x_fore", None) is not None:
             raise InputError("--x-aft/--x-fore go with a mesh; a case file gives x_aft/x_fore in its [hull]")
         if args.close_holes:
             raise InputError("--close-holes goes with a mesh; a case file gives close_holes = true in its [hull]")
@@ -184,6 +188,8 @@ def load_hull_source(args: argparse.Namespace) -> tuple[FloatingHull, float]:
     if is_case(args.source):
         from ..loading import read_case
 
+        if args.close_holes:
+            raise InputError("--close-holes goes with a mesh; a case file gives close_holes = true in its [hull]")
         case = read_case(args.source)
         return case.load_hull(), density(args, case.density)
     return load_mesh(args, args.source), density(args)
