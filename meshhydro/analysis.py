@@ -24,7 +24,7 @@ from . import analysis_tanks as tk
 from .criteria import CAUTION, CriteriaSet, Report, evaluate
 from .document import Column, Document, Figure, Quantity, Section, Table
 from .equilibrium import Equilibrium, solve_load
-from .errors import InputError
+from .errors import InputError, OpenRimError
 from .frames import SEA_WATER
 from .hydrostatics import FIELDS, UNITS
 from .loading import Condition, Opening, condition, read_case
@@ -159,6 +159,7 @@ def _equilibrium_values(inp: CaseInput, eq: Equilibrium) -> list[Quantity]:
         q("draft", "draft at reference", eq.draft, "m"), q("x_ref", "reference x", inp.hull.x_ref, "m"),
         q("draft_fore", "draft fore (x = %.3f)" % eq.x_fore, eq.draft_fore, "m"),
         q("draft_aft", "draft aft (x = %.3f)" % eq.x_aft, eq.draft_aft, "m"),
+        q("trim_m", "trim (fore - aft drafts)", eq.trim_m, "m"),
         q("heel", "heel (+ starboard down)", eq.heel, "deg"), q("trim", "trim (+ bow down)", eq.trim, "deg"),
         q("volume", "volume", eq.volume, "m³"), q("lcb", "LCB", eq.cob[0], "m"), q("tcb", "TCB", eq.cob[1], "m"),
         q("vcb", "VCB (KB)", eq.cob[2], "m"), q("bmt", "BMt", h.bmt, "m"), q("kmt", "KMt", h.kmt, "m"),
@@ -215,12 +216,14 @@ def float_analysis(inp: CaseInput) -> tuple[Equilibrium, Document]:
 
 # ---------------------------------------------------------------------------- righting curve
 
-ROW_KEYS = ["heel", "gz", "kn", "draft", "trim", "lcb", "tcb", "vcb", "up_x", "up_y", "up_z", "bm"]
-ROW_UNITS = {"heel": "deg", "gz": "m", "kn": "m", "draft": "m", "trim": "deg", "lcb": "m", "tcb": "m", "vcb": "m",
+ROW_KEYS = ["heel", "gz", "kn", "draft", "keel_depth", "trim", "lcb", "tcb", "vcb", "up_x", "up_y", "up_z", "bm"]
+ROW_UNITS = {"heel": "deg", "gz": "m", "kn": "m", "draft": "m", "keel_depth": "m", "trim": "deg", "lcb": "m",
+             "tcb": "m", "vcb": "m",
              "bm": "m", "deck_freeboard": "m"}
 SUMMARY_UNITS = {
     "gm_upright": "m", "gm_from_slope": "m", "max_gz": "m", "angle_of_max_gz": "deg", "equilibrium_angle": "deg",
     "vanishing_angle": "deg", "range_of_stability": "deg", "deck_edge_angle": "deg", "downflooding_angle": "deg",
+    "swamping_angle": "deg",
     "area_0_30": "m·rad", "area_0_40": "m·rad", "area_30_40": "m·rad",
 }
 
@@ -263,12 +266,16 @@ def _derived_section(curve: RightingCurve, sides: tuple[int, ...]) -> Section:
     sec = Section("derived", "")
     for s in sides:
         sm = curve.summary(s)
+        if sm.get("max_gz_beyond_range"):
+            sec.notes.append(f"note: heeling to {sm['side']}, GZ still rises at the last computed angle: "
+                             f"its maximum lies beyond the range")
         vals = [Quantity(k, k.replace("_", " "), sm.get(k), SUMMARY_UNITS[k]) for k in SUMMARY_UNITS if k in sm]
         if sm.get("downflooding_opening"):
             vals.append(Quantity("downflooding_opening", "downflooding opening", sm["downflooding_opening"]))
         sec.sections.append(Section(f"derived_{sm['side']}", f"derived values, heeling to {sm['side']}:",
                                     values=vals))
-    sec.notes.append("areas: exact integrals of the not-a-knot cubic spline through the computed points.")
+    sec.notes.append("areas: exact integrals of the not-a-knot cubic spline through the computed points; "
+                     "maximum GZ and the angles are solved on the true geometry between them.")
     sec.notes.append(f"kernel evaluations per angle: {curve.evaluations.mean():.2f} on average")
     if curve.submerged:
         sec.notes.append(f"note: fully submerged at every angle (B fixed, BM = 0, M on B): {SUBMERGED_NOTE}")
@@ -316,7 +323,7 @@ def _check(inp: CaseInput, curve: RightingCurve, cset: CriteriaSet, sides: tuple
     (None for a submerged body, which has no waterplane)."""
     i0 = int(np.argmin(np.abs(curve.heel)))  # upright is always on the curve
     upright = None if curve.submerged else inp.hull.hydrostatics(
-        float(curve.draft[i0] / curve.up[i0, 2]), heel=0.0, trim=float(curve.trim[i0]), density=inp.density)
+        float(curve.draft[i0]), heel=0.0, trim=float(curve.trim[i0]), density=inp.density)
     rep = evaluate(curve, cset, sides=sides, hydrostatics=upright, openings=inp.openings, windage=wind,
                    heeling_arms=arms)
     keys = ["id", "side", "criterion", "unit", "bound", "required", "attained", "margin", "result", "note"]
@@ -461,11 +468,27 @@ def drafts_for_displacements(hull: FloatingHull, displacements: np.ndarray, *, h
 def table_analysis(hull: FloatingHull, drafts: np.ndarray, *, heel: float = 0.0, trim: float = 0.0,
                    density: float = SEA_WATER) -> tuple[list[dict[str, float]], Document]:
     """Hydrostatic particulars over ``drafts`` [m] at one heel and trim [deg], and their report."""
-    rows = [h.to_dict() for h in hull.table(drafts, heel=heel, trim=trim, density=density)]
+    rim = hull.rim_draft(heel, trim)
+    below = [float(t) for t in drafts if rim is None or t <= rim]
+    if not below:
+        raise OpenRimError(f"every draft asked for reaches the open rim of the mesh (at draft {rim:.4f} m, heel "
+                           f"{heel:g}°, trim {trim:g}°)")
+    rows = []
+    for t in below:
+        try:
+            rows.append(hull.hydrostatics(t, heel=heel, trim=trim, density=density).to_dict())
+        except OpenRimError:
+            if rows:  # the rim lies at this draft within rounding: the table stops before it
+                break
+            raise
+    below = [r["draft"] for r in rows]
     digits = {"cb": 4, "cp": 4, "cm": 4, "cwp": 4, "heel": 1, "trim": 2}
     cols = [Column(k, k, UNITS[k], digits.get(k, 3)) for k in FIELDS]
     table = Table("hydrostatics", "", cols, rows, text_keys=[k for k in FIELDS if k not in ("heel", "trim")])
     sec = Section("hydrostatics", "", tables=[table])
+    if len(below) < len(drafts):
+        sec.notes.append(f"note: the table stops at draft {below[-1]:.4f} m: the water reaches the open rim of the "
+                         f"mesh at draft {rim:.4f} m; {len(drafts) - len(below)} deeper draft(s) left out")
     sec.figures.append(Figure("curves", f"Hydrostatic curves: {os.path.basename(hull.name)} "
                                         f"(ρ = {density:g} t/m³, heel {heel:g}°, trim {trim:g}°)",
                               "hydrostatic_curves", rows))

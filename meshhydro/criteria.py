@@ -212,6 +212,10 @@ def _area(ctx: Context, p: AreaParams) -> Outcome:
         note = f"to the downflooding angle {flood:.2f}°"
     if end <= p.start:
         return Outcome(0.0, f"downflooding at {flood:.2f}° comes before {p.start:g}°")
+    swamp = ctx.curve.swamping.get(ctx.sign)
+    if swamp is not None and end > swamp:  # an open boat: nothing rights beyond the swamping angle
+        return Outcome(ctx.curve.area(ctx.sign * p.start, ctx.sign * swamp) if swamp > p.start else 0.0,
+                       f"the open boat swamps at {swamp:.2f}°: area counted to there")
     if end > ctx.top + tol.ANGLE_SLACK:
         return Outcome(None, f"curve computed only to {ctx.top:g}°")
     # for either side this is the righting energy: positive when GZ rights
@@ -220,6 +224,9 @@ def _area(ctx: Context, p: AreaParams) -> Outcome:
 
 @register("gz_at", unit="m", params=AngleParams)
 def _gz_at(ctx: Context, p: AngleParams) -> Outcome:
+    swamp = ctx.curve.swamping.get(ctx.sign)
+    if swamp is not None and p.angle > swamp:
+        return Outcome(None, f"the open boat swamps at {swamp:.2f}°, before {p.angle:g}°")
     return Outcome(ctx.sign * ctx.curve.gz_at(ctx.sign * p.angle))
 
 
@@ -238,6 +245,9 @@ def _gz_max_beyond(ctx: Context, p: AngleParams) -> Outcome:
 
 @register("angle_of_max", unit="deg")
 def _angle_of_max(ctx: Context, p: NoParams) -> Outcome:
+    if ctx.curve.max_beyond_range(ctx.sign):
+        return Outcome(None, f"GZ still rises at {ctx.top:g}°: the maximum lies beyond the computed range",
+                       at_least=ctx.top)
     return Outcome(ctx.curve.max_gz(ctx.sign)[1])
 
 

@@ -13,7 +13,7 @@ from typing import Any, Sequence
 import numpy as np
 
 from . import tolerances as tol
-from .errors import NotConvergedError
+from .errors import CannotFloatError, CapsizeError, MeshHydroError, NotConvergedError, OpenRimError
 from .frames import SEA_WATER
 from .hull import Hull
 from .hydrostatics import Hydrostatics
@@ -29,7 +29,9 @@ from .solver import (
     newton,
     residuals,
     solve_volume,
+    upright_free_trim,
 )
+from .settle import check_centre, settle
 
 
 @dataclass(frozen=True, eq=False)
@@ -41,8 +43,11 @@ class Equilibrium:
     draft : float [m]
         Draft at the reference point (x_ref, 0), above the baseline z = 0.
     draft_fore, draft_aft : float [m]
-        Drafts on the centreline at the fore and aft ends of the waterline
-        (``x_fore``, ``x_aft``).
+        Drafts T along hull z on the centreline at ``x_fore`` and ``x_aft``: the hull's ends, or the
+        perpendiculars / draft marks given to the hull (``hull.x_fore``, ``hull.x_aft``). Negative
+        when that end is out of the water.
+    trim_m : float [m]
+        Trim in metres, draft fore minus draft aft (positive bow down).
     heel, trim : float [deg]
         Positive starboard down, positive bow down.
     volume : float [m³]
@@ -79,6 +84,7 @@ class Equilibrium:
     draft_aft: float
     x_fore: float
     x_aft: float
+    trim_m: float
     heel: float
     trim: float
     volume: float
@@ -100,7 +106,7 @@ class Equilibrium:
 
     def to_dict(self) -> dict[str, Any]:
         d = {k: getattr(self, k) for k in (
-            "displacement", "density", "draft", "draft_fore", "draft_aft", "x_fore", "x_aft", "heel", "trim",
+            "displacement", "density", "draft", "draft_fore", "draft_aft", "x_fore", "x_aft", "trim_m", "heel", "trim",
             "volume", "gmt", "gml", "stable", "loll", "iterations", "evaluations",
             "residual_volume", "residual_lever", "note", "submerged")}
         d["cob"] = self.cob.tolist()
@@ -147,12 +153,31 @@ def solve(hull: Hull, *, displacement: float, cog: np.ndarray, density: float = 
 def _loll(ev: Evaluator, v0: float, load: Load, upright: State) -> tuple[State, str]:
     """The loll position and its note, from an upright position with negative GMt."""
     st = find_loll(ev, v0, load, upright)
-    if st is None:
-        raise NotConvergedError("upright GM is negative and no stable heeled position was found: the vessel capsizes")
     gm0 = load_metacentric_heights(upright, load)[0]
+    if st is None:
+        return _settled(ev, v0, load, upright, f"upright GM is negative ({gm0:.4f} m)")
+    either = ev.hull.is_symmetric and abs(upright.heel) < tol.UPRIGHT and abs(load.centre(0.0, upright.trim)[1]) \
+        < tol.CENTRELINE
+    side = "either side, symmetric hull and load" if either else ("starboard" if st.heel > 0 else "port")
     note = (f"upright GM is negative ({gm0:.4f} m): the vessel lolls to "
-            f"{abs(st.heel):.2f}° (either side for a symmetric load); this is not a stable upright condition")
+            f"{abs(st.heel):.2f}° ({side}); this is not a stable upright condition")
     return st, note
+
+
+def _settled(ev: Evaluator, v0: float, load: Load, upright: State | None, why: str) -> tuple[State, str]:
+    """The heeled position read from the GZ curve when none is found near upright; CapsizeError when
+    GZ never turns righting, NotConvergedError naming the loll angle when Newton fails there."""
+    try:
+        s = settle(ev, v0, load, upright)
+    except NotConvergedError as exc:
+        raise NotConvergedError(f"{why}; {exc}") from None
+    except OpenRimError as exc:
+        raise OpenRimError(f"{why}; {exc}") from None
+    if s.kind == "capsize":
+        raise CapsizeError(f"{why}: {s.describe()}")
+    if s.state is None:
+        raise NotConvergedError(f"{why}: {s.describe()}, but the position there did not converge")
+    return s.state, f"{why}: {s.describe()}"
 
 
 def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel: float = 0.0,
@@ -164,6 +189,7 @@ def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel
     buoyancy): the position is the damaged one and the hydrostatics those of the net body.
     """
     rho, v0 = check_load(hull, load.displacement, density)
+    check_centre(hull, load)
     ev = Evaluator(hull, compartments)
     if is_neutral(hull, v0):
         st, note = sub.equilibrium_state(ev, load, submerged_depth, hull.total_volume * rho)
@@ -171,10 +197,10 @@ def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel
     st = solve_volume(ev, v0, start_heel, start_trim)
     res = newton(ev, v0, load, st, free_heel=True, free_trim=True)
     if not res.converged:
-        raise NotConvergedError(
-            f"equilibrium not found within tolerances after {res.iterations} iterations "
-            f"(volume residual {res.residual[0]:.2e}, levers {abs(res.residual[1]) * ev.L:.2e} m, "
-            f"{abs(res.residual[2]) * ev.L:.2e} m)")
+        why = f"no equilibrium near heel {start_heel:g}°"
+        st, note = _settled(ev, v0, load, None, why)
+        gm0 = _upright_gm(ev, v0, load)
+        return _result(hull, ev, load, st, rho, v0, res.iterations, gm0 is not None and gm0 < 0, note)
     st = res.state
     note = ""
     loll = bool(load_metacentric_heights(st, load)[0] < 0)
@@ -185,17 +211,29 @@ def solve_load(hull: Hull, load: Load, *, density: float = SEA_WATER, start_heel
     return _result(hull, ev, load, st, rho, v0, res.iterations, loll, note)
 
 
+def _upright_gm(ev: Evaluator, v0: float, load: Load) -> float | None:
+    """GMt [m] at the upright free-trim position, None when it cannot be had."""
+    try:
+        return float(load_metacentric_heights(upright_free_trim(ev, v0, load), load)[0])
+    except MeshHydroError:
+        return None
+
+
 def _result(hull: Hull, ev: Evaluator, load: Load, st: State, rho: float, v0: float, iterations: int,
             loll: bool, note: str, submerged: bool = False) -> Equilibrium:
     g = load.centre(st.heel, st.trim)
     gmt, gml = sub.metacentric_heights(st, load) if submerged else load_metacentric_heights(st, load)
     r = residuals(st, v0, load, ev.L)
     n = st.cut.normal
-    xa, xf = float(st.cut.waterline_x[0]), float(st.cut.waterline_x[1])
-    if submerged:  # no waterline: the ends of the hull
-        xa, xf = float(hull.bounds[0][0]), float(hull.bounds[1][0])
+    if not submerged and abs(st.heel) > tol.CAPSIZE_ANGLE:
+        raise CapsizeError(f"the only balance found is heeled {abs(st.heel):.2f}° to "
+                           f"{'starboard' if st.heel > 0 else 'port'}, beyond 90°: the vessel capsizes")
+    if not submerged and abs(st.trim) > tol.TRIM_LIMIT:
+        raise CannotFloatError(f"the only balance found is trimmed {st.trim:.2f}°, beyond {tol.TRIM_LIMIT:g}°: the "
+                               f"vessel would float on end; check the longitudinal centre of gravity")
+    xa, xf = hull.x_aft, hull.x_fore
 
-    def draft_at(x: float) -> float:  # z of the waterplane on the centreline at x
+    def draft_at(x: float) -> float:  # T along hull z at (x, 0): the plane n . (p - K) = depth
         return float((st.depth + n[0] * (hull.x_ref - x)) / n[2])
 
     solid = np.array(getattr(load, "cog", g), dtype=float)
@@ -204,7 +242,8 @@ def _result(hull: Hull, ev: Evaluator, load: Load, st: State, rho: float, v0: fl
         hs = _net_hydrostatics(hs, st.cut, rho)
     return Equilibrium(
         displacement=float(load.displacement), density=rho, draft=float(st.draft), draft_fore=draft_at(xf),
-        draft_aft=draft_at(xa), x_fore=xf, x_aft=xa, heel=st.heel, trim=st.trim, volume=st.cut.volume,
+        draft_aft=draft_at(xa), x_fore=xf, x_aft=xa, trim_m=draft_at(xf) - draft_at(xa), heel=st.heel,
+        trim=st.trim, volume=st.cut.volume,
         cob=st.cut.centroid.copy(), up=n.copy(), cog=solid, cog_fluid=np.array(g, dtype=float),
         gmt=float(gmt), gml=float(gml), stable=bool(gmt > 0 and gml > 0), loll=loll, hydrostatics=hs,
         iterations=iterations, evaluations=ev.count, residual_volume=float(abs(r[0])),

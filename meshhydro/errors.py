@@ -37,6 +37,12 @@ class CannotFloatError(MeshHydroError, ValueError):
     exit_code = 5
 
 
+class CapsizeError(CannotFloatError):
+    """The load has no stable floating position: its GZ curve never turns righting (it capsizes)."""
+
+    exit_code = 5
+
+
 class NotConvergedError(MeshHydroError, RuntimeError):
     """An iterative solver did not meet its tolerances."""
 

@@ -5,6 +5,7 @@ Floating and stability methods sit on :class:`meshhydro.vessel.FloatingHull`, ab
 """
 from __future__ import annotations
 
+import math
 from functools import cached_property
 from typing import Any, Sequence
 
@@ -50,10 +51,13 @@ class Hull:
     name : str
     x_ref : float [m]
         Longitudinal position of the draft reference point ``(x_ref, 0, T)``.
+    x_aft, x_fore : float [m]
+        Where drafts aft and fore are read (perpendiculars or draft marks); default the hull's ends.
     """
 
     def __init__(self, mesh: MeshData, report: HealthReport, *, name: str | None = None,
-                 x_ref: float | None = None) -> None:
+                 x_ref: float | None = None, x_aft: float | None = None,
+                 x_fore: float | None = None) -> None:
         if not report.usable:
             raise InvalidMeshError(report.problems[0])
         self.vertices = _frozen(mesh.vertices, np.float64)
@@ -63,6 +67,13 @@ class Hull:
         lo, hi = _frozen(report.bounds[0], np.float64), _frozen(report.bounds[1], np.float64)
         self.bounds = (lo, hi)
         self.x_ref = float(0.5 * (lo[0] + hi[0]) if x_ref is None else x_ref)
+        self.x_aft = float(lo[0] if x_aft is None else x_aft)
+        self.x_fore = float(hi[0] if x_fore is None else x_fore)
+        for name, v in (("x_ref", self.x_ref), ("x_aft", self.x_aft), ("x_fore", self.x_fore)):
+            if not math.isfinite(v):
+                raise InputError(f"{name} must be a finite x [m], got {v!r}")
+        if not self.x_aft < self.x_fore:
+            raise InputError(f"x_fore ({self.x_fore:g} m) must lie forward of x_aft ({self.x_aft:g} m)")
         rim_vertices = self._rim_vertices()
         self._prep = kernel.prepare(self.vertices, self.faces, rim_vertices=rim_vertices)
         #: volume [m³] and centroid (3,) of the whole mesh; meaningful only when the mesh is closed
@@ -142,6 +153,18 @@ class Hull:
                      density: float = SEA_WATER) -> _hs.Hydrostatics:
         """Hydrostatic particulars at ``draft`` [m], heel and trim [deg], density [t/m³]."""
         return _hs.compute(self._prep, draft, heel=heel, trim=trim, density=density, x_ref=self.x_ref)
+
+    def rim_draft(self, heel: float = 0.0, trim: float = 0.0) -> float | None:
+        """Draft T [m] at which the water first reaches an open rim at this heel and trim [deg]
+        (None for a closed mesh): the rim's lowest point along the waterplane normal."""
+        rim = self._prep.rim
+        if len(rim) == 0:
+            return None
+        n = up_vector(heel, trim)
+        if abs(n[2]) < tol.DRAFT_DEFINED:
+            return None
+        depth = float(((rim + self._prep.origin - np.array([self.x_ref, 0.0, 0.0])) @ n).min())
+        return depth / float(n[2])
 
     def table(self, drafts: Sequence[float], heel: float = 0.0, trim: float = 0.0,
               density: float = SEA_WATER) -> list[_hs.Hydrostatics]:

@@ -28,6 +28,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from . import kernel
+from . import tolerances as tol
 from .errors import CannotFloatError, InputError
 from .frames import SEA_WATER, up_vector
 
@@ -93,6 +94,16 @@ def check_density(density: float) -> float:
     return rho
 
 
+def draft_normal(heel: float, trim: float) -> np.ndarray:
+    """The waterplane normal (3,) at heel and trim [deg], or InputError where a draft T (along hull z)
+    cannot fix the waterplane (the hull z axis lies in it: heel or trim of 90°)."""
+    n = up_vector(heel, trim)
+    if abs(n[2]) < tol.DRAFT_DEFINED:
+        raise InputError(f"a draft does not fix the waterplane at heel {heel:g}°, trim {trim:g}°: the hull z axis "
+                         f"lies in the waterplane there (draft T is measured along it)")
+    return n
+
+
 def compute(
     prep: kernel.Prepared,
     draft: float,
@@ -118,7 +129,7 @@ def compute(
         if not math.isfinite(float(val)):
             raise InputError(f"{name} must be a finite number, got {val!r}")
     rho = check_density(density)
-    n = up_vector(heel, trim)
+    n = draft_normal(heel, trim)
     p = np.array([x_ref, 0.0, float(draft)])
     c = kernel.cut(prep, p, n)
     if c.volume <= 0.0 or c.waterplane_area <= 0.0:

@@ -220,6 +220,9 @@ class Case:
     merge_overlaps: bool = False
     x_ref: float | None = None
     name: str | None = None
+    x_aft: float | None = None
+    x_fore: float | None = None
+    close_holes: bool = False
     spec: Any = None
 
     def condition(self, name: str | None = None) -> Condition:
@@ -235,7 +238,8 @@ class Case:
         """Load and check the case's hull mesh with the case's own mesh options and repairs."""
         return load_hull(self.mesh, units=self.units, forward=self.forward, up=self.up, offset=self.offset,
                          flip_inside_out=self.flip_inside_out, merge_overlaps=self.merge_overlaps,
-                         x_ref=self.x_ref, name=self.name)
+                         x_ref=self.x_ref, name=self.name, x_aft=self.x_aft, x_fore=self.x_fore,
+                         close_holes=self.close_holes)
 
 
 def _condition_from_spec(c: Any) -> Condition:
@@ -274,4 +278,5 @@ def read_case(path: str) -> Case:
                 openings=tuple(Opening(o.name, tuple(float(x) for x in o.at)) for o in spec.openings),
                 conditions=tuple(_condition_from_spec(c) for c in spec.conditions),
                 flip_inside_out=h.flip_inside_out, merge_overlaps=h.merge_overlaps, x_ref=h.x_ref,
-                name=h.name, spec=spec)
+                name=h.name, spec=spec, x_aft=h.x_aft, x_fore=h.x_fore,
+                close_holes=h.close_holes)

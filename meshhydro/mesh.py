@@ -18,8 +18,8 @@ import numpy as np
 from .errors import InputError, InvalidMeshError
 from .frames import axis_matrix, unit_scale
 from .mesh_stl import Progress, binary_stl_count, read_binary_stl, weld
-from .mesh_topology import (EdgeTable, EdgeUse, bodies_by_edges, body_sums, degenerate_faces, duplicate_faces,
-                            edge_table, edge_use, rim_chains)
+from .mesh_topology import (EdgeTable, EdgeUse, bodies_by_edges, body_sums, capped_volumes_below,
+                            degenerate_faces, duplicate_faces, edge_table, edge_use, rim_chains)
 
 #: A hull larger than this in its longest extent [m] is taken as a unit mistake.
 MAX_PLAUSIBLE_LENGTH = 1000.0
@@ -60,6 +60,9 @@ class Body:
     bounds : tuple of two (3,) lists [m]
         Bounding box (min, max), hull frame.
     first_face : int
+    capped_volume : float or None [m³]
+        Open body: signed volume of its part below its lowest rim point, capped there (negative when
+        the body is inside out); None when closed.
     """
 
     index: int
@@ -68,6 +71,7 @@ class Body:
     volume: float | None
     bounds: tuple[list[float], list[float]]
     first_face: int
+    capped_volume: float | None = None
 
 
 @dataclass(frozen=True)
@@ -292,10 +296,18 @@ def _bodies(v: np.ndarray, f: np.ndarray, topo: _Topology) -> list[Body]:
     open_b = np.zeros(nb, bool)
     open_b[topo.use.body[bad]] = True
     vols, lo, hi, counts, first = body_sums(v, f, lab, nb)
+    capped = np.full(nb, np.nan)
+    if open_b.any():  # lowest rim point of each open body, and the capped part below it
+        rim = topo.use.boundary
+        e, rb = topo.use.edge[rim], topo.use.body[rim]
+        z0 = np.full(nb, np.inf)
+        np.minimum.at(z0, rb, np.minimum(v[topo.et.lo[e], 2], v[topo.et.hi[e], 2]))
+        capped = capped_volumes_below(v, f, lab, nb, np.where(np.isfinite(z0), z0, hi[:, 2]))
     return [
         Body(index=b, n_faces=int(counts[b]), closed=bool(not open_b[b]),
              volume=None if open_b[b] else float(vols[b]),
-             bounds=(lo[b].tolist(), hi[b].tolist()), first_face=int(first[b]))
+             bounds=(lo[b].tolist(), hi[b].tolist()), first_face=int(first[b]),
+             capped_volume=float(capped[b]) if open_b[b] else None)
         for b in range(nb)
     ]
 
@@ -389,6 +401,11 @@ def _body_findings(src: str, bodies: list[Body], overlaps: list[tuple[int, int, 
     problems: list[str] = []
     warnings: list[str] = []
     for b in bodies:
+        if b.capped_volume is not None and b.capped_volume < 0:
+            problems.append(
+                f"{src}: open body {b.index} (first face {b.first_face}) is inside out (its part below the "
+                f"lowest rim point, capped, has volume {b.capped_volume:.6g} m³); flip it explicitly with "
+                f"--flip-inside-out / flip_inside_out=True")
         if b.volume is not None and b.volume < 0:
             problems.append(
                 f"{src}: body {b.index} (first face {b.first_face}) is inside out (volume {b.volume:.6g} m³); "
@@ -471,10 +488,16 @@ def inspect(md: MeshData, *, progress: Progress | None = None) -> HealthReport:
         consistent_winding=n_unbal == 0, inconsistent_edges=int(n_unbal),
         non_manifold_edges=int(np.count_nonzero(topo.et.n_tot > 2)),
         degenerate_faces=topo.degenerate[:20].tolist(), duplicate_faces=topo.duplicate[:20].tolist(),
-        bodies=bodies, inside_out_bodies=[b.index for b in bodies if b.volume is not None and b.volume < 0],
+        bodies=bodies, inside_out_bodies=[b.index for b in bodies if (b.volume if b.volume is not None
+                                                                     else b.capped_volume or 0.0) < 0],
         overlaps=overlaps, overlap_checked=checked, flipped_bodies=[], merged=False,
         problems=problems, warnings=warnings,
     )
+
+
+def _enclosed(rep: HealthReport) -> float:
+    """Total enclosed volume [m³]: closed bodies whole, open ones capped below their lowest rim point."""
+    return float(sum(b.volume if b.volume is not None else (b.capped_volume or 0.0) for b in rep.bodies))
 
 
 def flip_bodies(md: MeshData, report: HealthReport) -> tuple[MeshData, list[int]]:
@@ -523,6 +546,7 @@ def check_mesh(
     flip_inside_out: bool = False,
     merge_overlaps: bool = False,
     progress: Progress | None = None,
+    close_holes: bool = False,
 ) -> tuple[MeshData, HealthReport]:
     """Read a mesh, apply only the repairs asked for, and report on it.
 
@@ -537,6 +561,16 @@ def check_mesh(
         The report on that mesh; repairs made are listed in it.
     """
     md = read_mesh(source, units=units, forward=forward, up=up, offset=offset, progress=progress)
+    closed_note = None
+    if close_holes:
+        from .mesh_repair import close_holes as _close
+
+        before = inspect(md)
+        f, closed_note = _close(md.vertices, md.faces)
+        md = MeshData(md.vertices, f, md.source, md.units, md.welded)
+        after = inspect(md)
+        closed_note += (f"; volume {_enclosed(before):.6g} -> {_enclosed(after):.6g} m³ "
+                        f"(open bodies capped at their lowest rim point)")
     rep = inspect(md, progress=progress)
     flipped: list[int] = []
     merged = False
@@ -547,8 +581,8 @@ def check_mesh(
         md = merge_overlapping(md)
         merged = True
         rep = inspect(md)
-    if flipped or merged:
-        notes = list(rep.warnings)
+    if flipped or merged or closed_note:
+        notes = list(rep.warnings) + ([closed_note] if closed_note else [])
         if flipped:
             notes.append(f"flipped inside-out bodies {flipped} as asked")
         if merged:

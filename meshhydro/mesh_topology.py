@@ -269,3 +269,43 @@ def _body_bounds(v: np.ndarray, f: np.ndarray, lab: np.ndarray, nb: int) -> tupl
     lo = np.minimum.reduceat(corners.min(axis=1), starts, axis=0)
     hi = np.maximum.reduceat(corners.max(axis=1), starts, axis=0)
     return lo, hi, order[starts]
+
+
+def capped_volumes_below(v: np.ndarray, f: np.ndarray, lab: np.ndarray, nb: int, z0: np.ndarray) -> np.ndarray:
+    """Signed volume [m³] (nb,) of each body's part below its plane z = ``z0[b]`` (nb,), capped by that
+    plane (divergence theorem with the apex on the plane, so the cap adds nothing; straddling faces are
+    clipped exactly). For an open body capped below its lowest rim point this is the volume of a closed
+    part: positive for outward winding, negative when the body is inside out.
+
+    v : (n, 3) [m]; f : (m, 3) int; lab : (m,) body label, -1 skipped.
+    """
+    out = np.zeros(nb)
+    keep = lab >= 0
+    tri = v[f[keep]]  # (k, 3, 3)
+    lb = lab[keep]
+    zc = z0[lb]
+    apex = np.zeros((len(tri), 3))
+    apex[:, 2] = zc
+    below = np.all(tri[:, :, 2] <= zc[:, None], axis=1)
+    a, b, c = (tri[below, i] - apex[below] for i in range(3))
+    np.add.at(out, lb[below], np.einsum("ij,ij->i", a, np.cross(b, c)) / 6.0)
+    straddle = ~below & np.any(tri[:, :, 2] < zc[:, None], axis=1)
+    for k in np.flatnonzero(straddle):
+        poly = _clip_below(tri[k], float(zc[k]))
+        p = poly - apex[k]
+        for i in range(1, len(p) - 1):
+            out[lb[k]] += float(p[0] @ np.cross(p[i], p[i + 1])) / 6.0
+    return out
+
+
+def _clip_below(t: np.ndarray, z0: float) -> np.ndarray:
+    """The part (k, 3) of triangle ``t`` (3, 3) with z <= z0, as a polygon in the triangle's order."""
+    pts = []
+    for i in range(3):
+        p, q = t[i], t[(i + 1) % 3]
+        if p[2] <= z0:
+            pts.append(p)
+        if (p[2] - z0) * (q[2] - z0) < 0:
+            s = (z0 - p[2]) / (q[2] - p[2])
+            pts.append(p + s * (q - p))
+    return np.array(pts)

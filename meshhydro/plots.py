@@ -79,9 +79,10 @@ def righting_curve(curve: Any, path: str, *, title: str = "") -> None:
             ax.annotate(f"GM {gm:.3f} m", (s * rad, s * gm), fontsize=8, ha="center",
                         xytext=(0, 6 * s), textcoords="offset points")
         gmax, amax = curve.max_gz(s)
+        beyond = curve.max_beyond_range(s)
         ax.plot([s * amax], [s * gmax], "^", color="tab:red")
-        ax.annotate(f"max {gmax:.3f} m at {amax:.1f}°", (s * amax, s * gmax), fontsize=8,
-                    xytext=(5, 5 * s), textcoords="offset points")
+        ax.annotate(f"GZ still rising at {amax:.1f}°" if beyond else f"max {gmax:.3f} m at {amax:.1f}°",
+                    (s * amax, s * gmax), fontsize=8, xytext=(5, 5 * s), textcoords="offset points")
         marks = [("vanishing", curve.vanishing_angle(s), "tab:red"),
                  ("deck edge", curve.deck_edge_angle(s), "tab:green"),
                  ("downflooding", curve.downflooding_angle(s)[0], "tab:purple")]
@@ -163,7 +164,7 @@ def section_view(hull: Hull | Sequence[Hull], traces: Sequence[Any], path: str, 
                 n = t.up[k]
                 d = np.array([n[2], -n[1]])  # waterline direction in (y, z)
                 d /= max(np.linalg.norm(d), 1e-12)
-                c = (K + t.draft[k] * n)[1:]
+                c = (K + t.keel_depth[k] * n)[1:]
                 q = c + (t.cob[k][1:] - c) @ d * d
                 a, b = q - 0.6 * ext * d, q + 0.6 * ext * d
                 ax.plot([a[0], b[0]], [a[1], b[1]], color="tab:cyan", lw=0.8, alpha=0.5)

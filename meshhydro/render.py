@@ -29,6 +29,11 @@ COLOURS = {
 }
 
 
+def _draft_text(t: float) -> str:
+    """Label text for a draft T [m] (undefined when the hull z axis lies in the waterplane)."""
+    return f"draft {t:.3f} m" if np.isfinite(t) else "draft undefined (hull z in the waterplane)"
+
+
 def _pv():
     import pyvista as pv
 
@@ -89,7 +94,7 @@ class Scene:
 
     def _to_earth(self, k: int, pts: np.ndarray) -> np.ndarray:
         R = hull_to_earth(self.trace.heel[k], self.trace.trim[k])
-        return (pts - self.K) @ R.T - np.array([0.0, 0.0, self.trace.draft[k]])
+        return (pts - self.K) @ R.T - np.array([0.0, 0.0, self.trace.keel_depth[k]])
 
     def _set_camera(self) -> None:
         p = self.plotter
@@ -132,7 +137,7 @@ class Scene:
                        opacity=alpha)
         else:
             p.remove_actor("above", render=False)
-        cut = self.hull.cut(self.K + t.draft[k] * t.up[k], t.up[k], segments=True)
+        cut = self.hull.cut(self.K + t.keel_depth[k] * t.up[k], t.up[k], segments=True)
         if cut.segments is not None and len(cut.segments):
             seg = self._to_earth(k, cut.segments.reshape(-1, 3))
             seg[:, 2] += 1e-4 * self.r_axis  # keep the line above the sheet
@@ -167,7 +172,7 @@ class Scene:
         p.add_mesh(pv.Line(G - np.array([0, 0, 0.5 * ra]), np.array([G[0], G[1], top])), color=COLOURS["G"],
                    line_width=1, name="vG", render=False)
         label = (f"heel {t.heel[k]:+.1f}°   GZ {t.gz[k]:+.3f} m   Δ {t.displacement:.3f} t   "
-                 f"draft {t.draft[k]:.3f} m   trim {t.trim[k]:+.2f}°{mtext}")
+                 f"{_draft_text(t.draft[k])}   trim {t.trim[k]:+.2f}°{mtext}")
         fs = max(5, int(round(11 * self.size[0] / 960)))
         p.add_text(label, position="upper_left", font_size=fs, color="#222222", name="label", render=False)
         p.add_text("G black   B blue   M green   GZ orange   (viewed from astern: starboard on the right)"

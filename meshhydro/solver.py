@@ -390,11 +390,13 @@ def _guess(ev: Evaluator, v0: float, heel: float, hist: list[State]) -> State:
 
 
 def step_angles(ev: Evaluator, v0: float, load: Load, heels: np.ndarray, start: State, free_trim: bool,
-                progress: Callable[[], object] | None = None) -> list[tuple[State, int]]:
+                progress: Callable[[], object] | None = None, *, stop_at_rim: bool = False) -> list[tuple[State, int]]:
     """Solve each heel [deg] of ``heels`` (monotone away from ``start.heel``) by continuation.
 
     Returns (state, kernel evaluations spent) per heel. With ``free_trim`` the trim balances the
     longitudinal moment (bracketed search where Newton stalls); otherwise it stays at the start's.
+    With ``stop_at_rim`` the list ends before the first heel at which the water reaches an open
+    rim (OpenRimError otherwise).
     """
     out: list[tuple[State, int]] = []
     hist: list[State] = [start]
@@ -402,21 +404,31 @@ def step_angles(ev: Evaluator, v0: float, load: Load, heels: np.ndarray, start: 
         before = ev.count
         if abs(h - start.heel) < tol.SAME_ANGLE:
             st = start
+        elif stop_at_rim:
+            try:
+                st = _solve_heel(ev, v0, load, float(h), hist, free_trim)
+            except OpenRimError:
+                break
         else:
-            guess = _guess(ev, v0, float(h), hist)
-            res = newton(ev, v0, load, guess, free_heel=False, free_trim=free_trim)
-            if not res.converged and free_trim:
-                res = bracketed_trim(ev, v0, load, float(h), hist[-1].trim)
-            if not res.converged:
-                raise NotConvergedError(
-                    f"free-trim position not found at heel {h:g}° (volume residual {res.residual[0]:.2e}, "
-                    f"trim lever {abs(res.residual[2]) * ev.L:.2e} m)")
-            st = res.state
+            st = _solve_heel(ev, v0, load, float(h), hist, free_trim)
         hist.append(st)
         out.append((st, ev.count - before))
         if progress is not None:
             progress()
     return out
+
+
+def _solve_heel(ev: Evaluator, v0: float, load: Load, h: float, hist: list[State], free_trim: bool) -> State:
+    """One heel of :func:`step_angles` (continued from ``hist``)."""
+    guess = _guess(ev, v0, h, hist)
+    res = newton(ev, v0, load, guess, free_heel=False, free_trim=free_trim)
+    if not res.converged and free_trim:
+        res = bracketed_trim(ev, v0, load, h, hist[-1].trim)
+    if not res.converged:
+        raise NotConvergedError(
+            f"free-trim position not found at heel {h:g}° (volume residual {res.residual[0]:.2e}, "
+            f"trim lever {abs(res.residual[2]) * ev.L:.2e} m)")
+    return res.state
 
 
 def find_loll(ev: Evaluator, v0: float, load: Load, upright: State) -> State | None:

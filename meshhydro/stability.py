@@ -7,10 +7,12 @@ sweep runs outward from upright in each direction, each angle starting from a li
 extrapolation of the two previous solutions, so Newton usually needs two or three
 kernel evaluations per angle.
 
-Derived values come from the not-a-knot cubic spline through the computed points
-(in degrees): the angle of maximum GZ, the angle of vanishing stability (its roots),
-and areas (its exact integral, converted to m·rad). On a 1° curve the spline's area
-agrees with a much finer curve to better than 1e-6 m·rad on smooth forms.
+Areas come from the not-a-knot cubic spline through the computed points (its exact
+integral, converted to m·rad); on a 1° curve the spline's area agrees with a much finer
+curve to better than 1e-6 m·rad on smooth forms. The angle and value of maximum GZ and the
+vanishing, deck-edge, downflooding and equilibrium angles are refined on the true geometry
+between the computed points (:mod:`meshhydro.curve_probe`), so a slope jump where a hull
+lifts out cannot make a spline overshoot the reported maximum.
 """
 from __future__ import annotations
 
@@ -21,11 +23,13 @@ from typing import Any, Callable, Protocol, Sequence
 import numpy as np
 
 from . import tolerances as tol
-from .errors import InputError
+from .errors import InputError, MeshHydroError
 from .frames import SEA_WATER, transverse_direction
 from .hull import Hull
 from . import submerged as sub
 from .load import FixedLoad, Load
+from .curve_probe import CurveProbe, refine_max, refine_root, swamping_state
+from .settle import check_centre
 from .solver import (
     Evaluator,
     State,
@@ -37,6 +41,10 @@ from .solver import (
     step_angles,
     upright_free_trim,
 )
+
+
+#: Name of the "opening" an open hull floods through: its rim (the swamping angle).
+SWAMPING = "open rim (swamping)"
 
 
 @dataclass(frozen=True, eq=False)
@@ -51,8 +59,11 @@ class RightingCurve:
     kn : (n,) [m]
         Lever of buoyancy about K = (x, 0, 0): GZ = KN - KG sin φ + TCG cos φ.
     draft : (n,) [m]
-        Vertical depth of the reference keel point (x_ref, 0, 0) below the water
-        surface: the draft when upright, defined at every angle.
+        Draft T along the hull z axis at (x_ref, 0), as in ``hull.hydrostatics(draft, heel, trim)``;
+        NaN where it is undefined (the hull z axis lies in the waterplane: heel or trim of 90°).
+    keel_depth : (n,) [m]
+        Vertical depth of the reference keel point (x_ref, 0, 0) below the water surface
+        (equals T upright, defined at every angle).
     trim : (n,) [deg]
     cob : (n, 3) [m]
     up : (n, 3)
@@ -100,6 +111,12 @@ class RightingCurve:
     openings: dict[str, np.ndarray] = field(default_factory=dict)
     submerged: bool = False
     centres: np.ndarray | None = None
+    keel_depth: np.ndarray | None = None
+    #: Solves the true position at any heel (None for a curve built from points alone).
+    probe: CurveProbe | None = field(default=None, repr=False)
+    _memo: dict = field(default_factory=dict, repr=False)
+    #: open hull: side (+1, -1) -> swamping angle [deg], where the water reaches the rim and the curve ends
+    swamping: dict[int, float] = field(default_factory=dict)
 
     def centre_at(self, k: int) -> np.ndarray:
         """G (3,) [m] at the k-th angle (``cog`` when the curve has no per-angle centres)."""
@@ -157,33 +174,80 @@ class RightingCurve:
             return float((-3 * self.gz[i] + 4 * self.gz[i + 1] - self.gz[i + 2]) / (2 * d))
         return None
 
+    def _refined(self, key: tuple, compute: Callable[[], Any]) -> Any:
+        if key not in self._memo:
+            self._memo[key] = compute()
+        return self._memo[key]
+
+    def _gz_side(self, sign: int) -> Callable[[float], float]:
+        probe = self.probe
+        assert probe is not None
+        return lambda a: sign * probe.gz(sign * a)
+
     def max_gz(self, sign: int = 1) -> tuple[float, float]:
-        """(largest GZ [m], its angle [deg]) on one side (+1 starboard-down heels, -1 port)."""
-        sp = self.interpolant()
+        """(largest GZ [m], its angle [deg]) on one side (+1 starboard-down heels, -1 port).
+
+        Refined on the true geometry between the neighbours of the largest computed point (bounded
+        Brent search; the result is a solved position, never above the curve). When GZ still rises at
+        the last computed angle the maximum lies beyond the range (:meth:`max_beyond_range`) and this
+        gives the last point."""
+        return self._refined(("max", sign), lambda: self._max_gz(sign))
+
+    def _max_gz(self, sign: int) -> tuple[float, float]:
         x, y = self.side(sign)
         if len(x) == 0:
             raise InputError("the curve has no angles on that side")
         k = int(np.argmax(y))
         best = (float(y[k]), float(x[k]))
         lo, hi = x[max(k - 1, 0)], x[min(k + 1, len(x) - 1)]
-        if hi > lo:
-            for r in _roots(sp.derivative(), sign * lo, sign * hi):
-                val = float(sp(r)) * sign
-                if val > best[0]:
-                    best = (val, abs(float(r)))
+        if hi <= lo or self.max_beyond_range(sign):
+            return best
+        if self.probe is not None:
+            try:
+                val, a = refine_max(self._gz_side(sign), float(lo), float(hi))
+            except MeshHydroError:
+                return best  # no position between the points: the largest computed one stands
+            return (val, a) if val >= best[0] else best
+        sp = self.interpolant()
+        for r in _roots(sp.derivative(), sign * lo, sign * hi):
+            val = float(sp(r)) * sign
+            if val > best[0]:
+                best = (val, abs(float(r)))
         return best
+
+    def max_beyond_range(self, sign: int = 1) -> bool:
+        """True when GZ still rises at the last computed angle on that side: its maximum lies beyond
+        (never for a side that ends at its swamping angle: an open hull's curve has no beyond)."""
+        if sign in self.swamping:
+            return False
+        x, y = self.side(sign)
+        return bool(len(y) >= 2 and int(np.argmax(y)) == len(y) - 1 and y[-1] > y[-2])
+
+    def _root(self, sign: int, f: Callable[[float], float] | None, k: int, x: np.ndarray,
+              y: np.ndarray) -> float:
+        """Root between computed points k and k+1 (values y): refined when ``f`` is given, else linear."""
+        if f is not None:
+            try:
+                return refine_root(f, float(x[k]), float(x[k + 1]), float(y[k]), float(y[k + 1]))
+            except (MeshHydroError, ValueError):
+                pass
+        return float(x[k] + (x[k + 1] - x[k]) * y[k] / (y[k] - y[k + 1]))
 
     def vanishing_angle(self, sign: int = 1) -> float | None:
         """Angle of vanishing stability [deg]: first down-crossing of GZ past its maximum."""
+        return self._refined(("vanish", sign), lambda: self._vanishing(sign))
+
+    def _vanishing(self, sign: int) -> float | None:
         x, y = self.side(sign)
         _, amax = self.max_gz(sign)
-        sp = self.interpolant()
         for k in range(len(x) - 1):
             if x[k + 1] <= amax:
                 continue
             if y[k] > 0 >= y[k + 1]:
-                rr = _roots(sp, sign * x[k], sign * x[k + 1])
-                return float(abs(rr[0])) if rr else float(x[k] + (x[k + 1] - x[k]) * y[k] / (y[k] - y[k + 1]))
+                if self.probe is not None:
+                    return self._root(sign, self._gz_side(sign), k, x, y)
+                rr = _roots(self.interpolant(), sign * x[k], sign * x[k + 1])
+                return float(abs(rr[0])) if rr else self._root(sign, None, k, x, y)
         if len(x) > 1 and x[-1] >= 180.0 - tol.ANGLE_SLACK and y[-2] > 0 and x[-2] > amax \
                 and abs(y[-1]) <= tol.GZ_ROUNDING * float(np.max(np.abs(self.gz))):
             return 180.0  # GZ vanishes at 180° (inverted, G and B on the centreline): rounding left it tiny
@@ -191,38 +255,49 @@ class RightingCurve:
 
     def equilibrium_angle(self, sign: int = 1) -> float:
         """Angle [deg] at which GZ first becomes positive on that side (0 when upright is stable)."""
+        return self._refined(("equil", sign), lambda: self._equilibrium(sign))
+
+    def _equilibrium(self, sign: int) -> float:
         x, y = self.side(sign)
         if len(y) and y[0] >= 0 and (len(y) < 2 or y[1] > 0):
             return 0.0
+        f = self._gz_side(sign) if self.probe is not None else None
         for k in range(len(x) - 1):
             if y[k] <= 0 < y[k + 1]:
-                return float(x[k] + (x[k + 1] - x[k]) * (-y[k]) / (y[k + 1] - y[k]))
+                return self._root(sign, f, k, x, y)
         return 0.0
 
     def range_of_stability(self, sign: int = 1) -> float | None:
         v = self.vanishing_angle(sign)
         return None if v is None else v - self.equilibrium_angle(sign)
 
-    def _first_immersion(self, free: np.ndarray | None, sign: int) -> float | None:
+    def _first_immersion(self, free: np.ndarray | None, sign: int, points: np.ndarray | None) -> float | None:
         if free is None:
             return None
         x, y = self.side(sign, free)
+        probe = self.probe
+        f = None if probe is None or points is None else (lambda a: probe.freeboard(sign * a, points))
         for k in range(len(x) - 1):
-            if y[k] > 0 >= y[k + 1]:
-                return float(x[k] + (x[k + 1] - x[k]) * y[k] / (y[k] - y[k + 1]))
             if k == 0 and y[0] <= 0:
                 return 0.0
+            if y[k] > 0 >= y[k + 1]:
+                return self._root(sign, f, k, x, y)
         return None
 
     def deck_edge_angle(self, sign: int = 1) -> float | None:
-        """Heel [deg] at which the deck edge first reaches the water (linear between points)."""
-        return self._first_immersion(self.deck_freeboard, sign)
+        """Heel [deg] at which the deck edge first reaches the water (refined on the true geometry)."""
+        pts = self.probe.points.get("deck") if self.probe is not None else None
+        return self._refined(("deck", sign), lambda: self._first_immersion(self.deck_freeboard, sign, pts))
 
     def downflooding_angle(self, sign: int = 1) -> tuple[float | None, str | None]:
         """(Least angle [deg] at which an opening immerses, its name) on one side."""
-        best: tuple[float | None, str | None] = (None, None)
+        return self._refined(("flood", sign), lambda: self._downflooding(sign))
+
+    def _downflooding(self, sign: int) -> tuple[float | None, str | None]:
+        best: tuple[float | None, str | None] = (self.swamping.get(sign), SWAMPING if sign in self.swamping else None)
         for name, fb in self.openings.items():
-            a = self._first_immersion(fb, sign)
+            pts = self.probe.points.get(f"opening:{name}") if self.probe is not None else None
+            a = self._first_immersion(fb, sign, pts)
             if a is not None and (best[0] is None or a < best[0]):
                 best = (a, name)
         return best
@@ -230,13 +305,15 @@ class RightingCurve:
     def summary(self, sign: int = 1) -> dict[str, Any]:
         """Derived values for one side as a dict (angles in degrees, GZ in m, areas in m·rad)."""
         gmax, amax = self.max_gz(sign)
+        beyond = self.max_beyond_range(sign)
         flood, which = self.downflooding_angle(sign)
         out = {
             "side": "starboard" if sign > 0 else "port",
             "gm_upright": self.gm_upright,
             "gm_from_slope": self.gm_from_slope(),
-            "max_gz": gmax,
-            "angle_of_max_gz": amax,
+            "max_gz": None if beyond else gmax,
+            "angle_of_max_gz": None if beyond else amax,
+            "max_gz_beyond_range": beyond,
             "equilibrium_angle": self.equilibrium_angle(sign),
             "vanishing_angle": self.vanishing_angle(sign),
             "range_of_stability": self.range_of_stability(sign),
@@ -244,6 +321,8 @@ class RightingCurve:
             "downflooding_angle": flood,
             "downflooding_opening": which,
         }
+        if sign in self.swamping:
+            out["swamping_angle"] = self.swamping[sign]
         top = float(np.max(self.heel * sign))
         for a, b in ((0, 30), (0, 40), (30, 40)):
             if top >= b:
@@ -257,7 +336,9 @@ class RightingCurve:
         out = []
         for k in range(len(self.heel)):
             r = {"heel": float(self.heel[k]), "gz": float(self.gz[k]), "kn": float(self.kn[k]),
-                 "draft": float(self.draft[k]), "trim": float(self.trim[k]),
+                 "draft": float(self.draft[k]) if math.isfinite(self.draft[k]) else None,
+                 "keel_depth": None if self.keel_depth is None else float(self.keel_depth[k]),
+                 "trim": float(self.trim[k]),
                  "lcb": float(self.cob[k, 0]), "tcb": float(self.cob[k, 1]), "vcb": float(self.cob[k, 2]),
                  "up_x": float(self.up[k, 0]), "up_y": float(self.up[k, 1]), "up_z": float(self.up[k, 2]),
                  "bm": float(self.bm[k]), "evaluations": int(self.evaluations[k])}
@@ -330,6 +411,7 @@ def curve_for_load(hull: Hull, load: Load, *, heels: Sequence[float] | None = No
     angle (lost buoyancy): the curve is the damaged one, the displacement the intact ship's.
     """
     rho, v0 = check_load(hull, load.displacement, density)
+    check_centre(hull, load)
     hs = _heel_set(heels)
     ev = Evaluator(hull, compartments)
     if is_neutral(hull, v0):
@@ -337,16 +419,27 @@ def curve_for_load(hull: Hull, load: Load, *, heels: Sequence[float] | None = No
     up0 = upright_free_trim(ev, v0, load)
     start_cost = ev.count
     solved: dict[float, tuple[State, int]] = {}
-    for part in (hs[hs >= 0], hs[hs < 0][::-1]):
+    swamp: dict[int, float] = {}
+    open_hull = not hull.report.closed
+    for sign, part in ((1, hs[hs >= 0]), (-1, hs[hs < 0][::-1])):
         if len(part):
-            for h, (st, n) in zip(part, step_angles(ev, v0, load, part, up0, free_trim, progress), strict=True):
+            got = step_angles(ev, v0, load, part, up0, free_trim, progress, stop_at_rim=open_hull)
+            for h, (st, n) in zip(part, got):
                 solved[float(h)] = (st, n)
+            if len(got) < len(part):  # the water reaches the open rim: the curve ends at the swamping angle
+                before = ev.count
+                st = swamping_state(ev, v0, load, free_trim, got[-1][0] if got else up0, float(part[len(got)]))
+                solved[st.heel] = (st, ev.count - before)
+                swamp[sign] = abs(st.heel)
+    hs = np.array(sorted(solved))
     k0 = float(hs[np.argmin(np.abs(hs))])
     st, n = solved[k0]
     solved[k0] = (st, n + start_cost)
     states = [solved[float(h)][0] for h in hs]
-    return _assemble(hull, ev, load, hs, states, np.array([solved[float(h)][1] for h in hs]), rho, free_trim,
-                     openings, up0 if abs(k0) < tol.UPRIGHT else None)
+    curve = _assemble(hull, ev, load, hs, states, np.array([solved[float(h)][1] for h in hs]), rho, free_trim,
+                      openings, up0 if abs(k0) < tol.UPRIGHT else None)
+    curve.swamping.update(swamp)
+    return curve
 
 
 def _submerged_curve(hull: Hull, ev: Evaluator, load: Load, hs: np.ndarray, rho: float, free_trim: bool,
@@ -377,8 +470,17 @@ def _assemble(hull: Hull, ev: Evaluator, load: Load, hs: np.ndarray, states: lis
     gm_up = None
     if upright is not None:
         gm_up = float((sub.metacentric_heights if submerged else load_metacentric_heights)(upright, load)[0])
+    probe = None if submerged else CurveProbe(ev, float(load.displacement) / rho, load, free_trim, hs, states)
+    if probe is not None and len(deck):
+        probe.points["deck"] = np.asarray(deck, float)
+    for o in openings if probe is not None else ():
+        probe.points[f"opening:{o.name}"] = np.asarray(o.at, float)[None, :]
+    depth = np.array([s.depth for s in states])
+    nz = np.array([s.cut.normal[2] for s in states])
+    defined = np.abs(nz) >= tol.DRAFT_DEFINED
+    draft = np.where(defined, depth / np.where(defined, nz, 1.0), np.nan)
     return RightingCurve(
-        heel=hs, gz=gz, kn=kn, draft=np.array([s.depth for s in states]), trim=np.array([s.trim for s in states]),
+        heel=hs, gz=gz, kn=kn, draft=draft, keel_depth=depth, probe=probe, trim=np.array([s.trim for s in states]),
         cob=np.array([s.cut.centroid for s in states]), up=np.array([s.cut.normal for s in states]),
         volume=np.array([s.cut.volume for s in states]),
         waterplane_area=np.zeros(len(states)) if submerged else np.array([s.cut.waterplane_area for s in states]),

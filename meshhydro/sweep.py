@@ -20,6 +20,7 @@ only when complete; a target that holds anything but an earlier sweep is refused
 """
 from __future__ import annotations
 
+import math
 import os
 import shutil
 import tempfile
@@ -54,6 +55,7 @@ class Trace:
     heel = property(lambda self: self.curve.heel)
     gz = property(lambda self: self.curve.gz)
     draft = property(lambda self: self.curve.draft)
+    keel_depth = property(lambda self: self.curve.keel_depth)
     trim = property(lambda self: self.curve.trim)
     cob = property(lambda self: self.curve.cob)
     up = property(lambda self: self.curve.up)
@@ -74,7 +76,9 @@ class Trace:
     def to_dict(self) -> dict[str, Any]:
         rows = []
         for k in range(len(self.heel)):
-            rows.append({"heel": float(self.heel[k]), "draft": float(self.draft[k]), "trim": float(self.trim[k]),
+            t = float(self.draft[k])
+            rows.append({"heel": float(self.heel[k]), "draft": t if math.isfinite(t) else None,
+                         "keel_depth": float(self.keel_depth[k]), "trim": float(self.trim[k]),
                          "gz": float(self.gz[k]), "B": self.cob[k].tolist(), "M": self.metacentre[k].tolist(),
                          "G": self.cog_at(k).tolist(), "up": self.up[k].tolist(), "bm": float(self.bm[k])})
         return {"label": self.label, "displacement": self.displacement, "density": self.density,

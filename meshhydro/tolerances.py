@@ -52,6 +52,8 @@ LOLL_TIE = 1e-6
 #: tolerance on the upward vertical.
 SUBMERGED_MAX_ITER = 50
 SUBMERGED_TOL = 1e-13
+#: A stable position heeled beyond this [deg] is a capsize (on its side or inverted; common practice).
+CAPSIZE_ANGLE = 90.0
 #: Guard against division by an empty volume [m³].
 TINY_VOLUME = 1e-300
 
@@ -78,3 +80,14 @@ CENTRELINE = 1e-12
 SMALL_WATERPLANE = 0.1
 #: A listed equilibrium is reported when |heel| exceeds this [deg].
 LIST_NOTE = 0.01
+
+# ---------------------------------------------------------------- refined curve values (meshhydro.curve_probe)
+#: Bounded search for the angle of maximum GZ: abscissa tolerance [deg] and iteration limit.
+PEAK_XTOL = 1e-7
+PEAK_MAX_ITER = 200
+#: Root finder for vanishing, deck-edge, downflooding and equilibrium angles: tolerance [deg].
+ROOT_XTOL = 1e-10
+#: The draft T along hull z is undefined (reported as NaN) where |up_z| is below this (heel or trim 90°).
+DRAFT_DEFINED = 1e-9
+#: Bisection tolerance of the swamping angle of an open hull [deg].
+SWAMP_XTOL = 1e-9

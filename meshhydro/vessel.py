@@ -37,7 +37,8 @@ class FloatingHull(Hull):
 
 def load_hull(source: Any, units: str = "m", *, forward: str = "+x", up: str = "+z",
               offset: Sequence[float] = (0.0, 0.0, 0.0), flip_inside_out: bool = False,
-              merge_overlaps: bool = False, name: str | None = None, x_ref: float | None = None) -> FloatingHull:
+              merge_overlaps: bool = False, name: str | None = None, x_ref: float | None = None,
+              x_aft: float | None = None, x_fore: float | None = None, close_holes: bool = False) -> FloatingHull:
     """Load and check a hull mesh; raise if it cannot be used.
 
     Parameters
@@ -50,22 +51,25 @@ def load_hull(source: Any, units: str = "m", *, forward: str = "+x", up: str = "
         File axes pointing forward and up, e.g. ``up='+y'`` for a Y-up export.
     offset : (3,) [m]
         Added to hull-frame coordinates after scaling and rotation.
-    flip_inside_out, merge_overlaps : bool
+    flip_inside_out, merge_overlaps, close_holes : bool
         Explicit repairs; nothing is repaired otherwise.
     name : str, optional
     x_ref : float, optional [m]
         x of the draft reference point; default the middle of the hull's length.
+    x_aft, x_fore : float, optional [m]
+        x of the aft and fore perpendiculars or draft marks where drafts aft and fore are read;
+        default the hull's ends.
 
     Raises
     ------
     InputError, InvalidMeshError
     """
     md, rep = check_mesh(source, units=units, forward=forward, up=up, offset=tuple(offset),
-                         flip_inside_out=flip_inside_out, merge_overlaps=merge_overlaps)
+                         flip_inside_out=flip_inside_out, merge_overlaps=merge_overlaps, close_holes=close_holes)
     if not rep.usable:
         n = len(rep.problems) - 1
         more = f" (and {n} more problems; see the mesh health report)" if n else ""
         raise InvalidMeshError(rep.problems[0] + more)
     if x_ref is not None and not math.isfinite(float(x_ref)):
         raise InputError(f"x_ref must be finite, got {x_ref!r}")
-    return FloatingHull(md, rep, name=name, x_ref=x_ref)
+    return FloatingHull(md, rep, name=name, x_ref=x_ref, x_aft=x_aft, x_fore=x_fore)

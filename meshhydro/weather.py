@@ -316,15 +316,14 @@ def weather_on_curve(hull: Any, curve: Any, *, items: Any = (), bilge: str = "ro
 def curve_windage(hull: Any, curve: Any, *, items: Any = (), lever_to: str = "underwater_centre") -> Any:
     """Windage (:func:`meshhydro.windage.windage`) at the upright free-trim waterline of a RightingCurve.
 
-    The curve's draft is the vertical depth of K = (x_ref, 0, 0); the draft along the hull
-    z axis at x_ref is that over cos(trim)."""
+    The curve's draft is T along the hull z axis at (x_ref, 0), as windage takes it."""
     from .windage import windage
 
     k0 = int(np.argmin(np.abs(curve.heel)))
     if abs(curve.heel[k0]) > 1e-12:
         raise InputError("weather: the GZ curve must include the upright position (0°)")
     trim = float(curve.trim[k0])
-    draft = float(curve.draft[k0]) / math.cos(math.radians(trim))
+    draft = float(curve.draft[k0])
     return windage(hull.vertices, hull.faces, draft=draft, trim=trim, x_ref=hull.x_ref, items=items,
                    lever_to=lever_to, closed=bool(hull.report.closed))
 

@@ -82,7 +82,7 @@ def test_bad_input_one_line_no_traceback(case, box_stl, tmp_path):
         top = np.all(v[f][:, :, 2] == 2.0, axis=1)
         p = tmp_path / "open.stl"
         trimesh.Trimesh(v, f[~top], process=False).export(p)
-        args = ["table", str(p), "--drafts", "1:3:1"]
+        args = ["table", str(p), "--drafts", "2.5:3:0.5"]  # every draft above the rim (rows below it are given)
     else:
         args = ["table", box_stl, "--drafts", "3:1:0.5"]
     out = tmp_path / "never.json"

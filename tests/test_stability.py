@@ -155,7 +155,7 @@ def test_free_trim_differs_from_fixed_trim_on_asymmetric_ends():
     assert np.max(np.abs(free.gz - fixed.gz)) > 5e-3
     # each free-trim state is a true balance: B under G longitudinally (recomputed from the kernel)
     for k in range(len(heels)):
-        c = hull.cut(np.array([hull.x_ref, 0, 0]) + free.draft[k] * free.up[k], free.up[k])
+        c = hull.cut(np.array([hull.x_ref, 0, 0]) + free.keel_depth[k] * free.up[k], free.up[k])
         assert c.volume * RHO == pytest.approx(disp, rel=1e-9)
         lever = (c.centroid - np.array(g)) @ longitudinal_direction(free.heel[k], free.trim[k])
         assert abs(lever) < 1e-7
@@ -188,7 +188,7 @@ def test_catamaran_peaks_near_windward_hull_lifting_clear():
     c = hull.righting_curve(disp, (5.0, 0.0, 1.5), heels=np.arange(0, 40.5, 0.5))
     port = v[8:]  # windward (lifting) hull when heeling to starboard
     K = np.array([hull.x_ref, 0, 0])
-    clear = [float(np.min((port - K) @ c.up[k]) - c.draft[k]) for k in range(len(c.heel))]
+    clear = [float(np.min((port - K) @ c.up[k]) - c.keel_depth[k]) for k in range(len(c.heel))]
     lift = next(c.heel[k] for k in range(len(clear)) if clear[k] >= 0)
     _, amax = c.max_gz(1)
     assert abs(amax - lift) <= 2.0

@@ -79,6 +79,12 @@ def parse_size(text: str, what: str = "--size") -> tuple[int, int]:
     return w, h
 
 
+def marks_args(p: argparse.ArgumentParser) -> None:
+    """Where drafts fore and aft are read, for a mesh (a case file gives them in its [hull])."""
+    p.add_argument("--x-aft", type=float, help="x of the aft perpendicular / draft mark [m] (default the hull's aft end)")
+    p.add_argument("--x-fore", type=float, help="x of the fore perpendicular / draft mark [m] (default the fore end)")
+
+
 def parse_opening(spec: str) -> Opening:
     """``'NAME=X,Y,Z'`` -> an Opening."""
     if "=" not in spec:
@@ -98,6 +104,8 @@ def mesh_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--offset", default="0,0,0", help="X,Y,Z added after scaling and axes [m]")
     g.add_argument("--flip-inside-out", action="store_true", help="flip bodies found inside out (explicit repair)")
     g.add_argument("--merge-overlaps", action="store_true", help="union overlapping bodies (explicit repair)")
+    g.add_argument("--close-holes", action="store_true",
+                   help="fill one-triangle and quad holes (explicit repair; the change is reported)")
 
 
 def out_args(p: argparse.ArgumentParser, formats: Sequence[str] = ("text", "csv", "json")) -> None:
@@ -152,7 +160,9 @@ def density_override(args: argparse.Namespace) -> float | None:
 def load_mesh(args: argparse.Namespace, path: str | None = None) -> FloatingHull:
     return load_hull(path or args.mesh, units=args.units, forward=args.forward, up=args.up,
                      offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
-                     merge_overlaps=args.merge_overlaps)
+                     merge_overlaps=args.merge_overlaps, close_holes=args.close_holes,
+                     x_aft=getattr(args, "x_aft", None),
+                     x_fore=getattr(args, "x_fore", None))
 
 
 def is_case(path: str) -> bool:
@@ -171,6 +181,10 @@ def _load_source(args: argparse.Namespace) -> CaseInput:
     if is_case(args.source):
         if args.displacement is not None or args.cog:
             raise InputError("give either a case file or --displacement/--cog with a mesh, not both")
+        if getattr(args, "x_aft", None) is not None or getattr(args, "x_fore", None) is not None:
+            raise InputError("--x-aft/--x-fore go with a mesh; a case file gives x_aft/x_fore in its [hull]")
+        if args.close_holes:
+            raise InputError("--close-holes goes with a mesh; a case file gives close_holes = true in its [hull]")
         return from_case(args.source, args.condition, density=density_override(args))
     if args.displacement is None or not args.cog:
         raise InputError(f"{args.source}: a mesh needs --displacement T and --cog X,Y,Z (or use a case file)")
@@ -185,6 +199,8 @@ def load_hull_source(args: argparse.Namespace) -> tuple[FloatingHull, float]:
     if is_case(args.source):
         from ..loading import read_case
 
+        if args.close_holes:
+            raise InputError("--close-holes goes with a mesh; a case file gives close_holes = true in its [hull]")
         case = read_case(args.source)
         return case.load_hull(), density(args, case.density)
     return load_mesh(args, args.source), density(args)

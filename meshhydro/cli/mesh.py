@@ -17,7 +17,7 @@ def cmd_check(args: argparse.Namespace) -> int:
 
     md, rep = check_mesh(args.mesh, units=args.units, forward=args.forward, up=args.up,
                          offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
-                         merge_overlaps=args.merge_overlaps)
+                         merge_overlaps=args.merge_overlaps, close_holes=args.close_holes)
     output(args, check_analysis(rep))
     if not rep.usable:
         print(f"meshhydro: {rep.problems[0]}", file=sys.stderr)

@@ -14,6 +14,7 @@ from .common import (
     mesh_args,
     load_hull_source,
     load_source,
+    marks_args,
     out_args,
     output,
     parse_range,
@@ -83,6 +84,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     """Add the stability sub-commands."""
     f = sub.add_parser("float", help="free-floating position (draft, heel, trim) for a loading condition")
     source_args(f)
+    marks_args(f)
     out_args(f)
     f.set_defaults(func=cmd_float)
 

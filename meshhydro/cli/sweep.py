@@ -37,6 +37,8 @@ def cmd_sweep(args: argparse.Namespace) -> int:
               f"BM {tr.bm[k]:.4f} m")
     if tr.note:
         print(f"note: {tr.note}")
+    for s, a in sorted(tr.curve.swamping.items()):
+        print(f"  ends at the swamping angle {s * a:.4f}°: the water reaches the open rim there")
     print(f"wrote {args.out}: {frames} frames, " + ", ".join(others))
     return 0
 
