@@ -32,12 +32,15 @@ def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--planes", type=int, default=100_000, help="total number of planes")
     ap.add_argument("--seed", type=int, default=2026)
+    ap.add_argument("--meshes", default="", help="comma-separated subset of the meshes (default all)")
     args = ap.parse_args(argv)
     meshes = reference_meshes(ROOT)
     weight = sum(c for _, c in meshes.values())
     overall = {k: (0.0, None) for k in LIMITS}
     t0 = time.perf_counter()
     for i, (name, (make, share)) in enumerate(meshes.items()):
+        if args.meshes and name not in args.meshes.split(","):
+            continue
         hull = load_hull(trimesh.Trimesh(*make(), process=False))
         count = max(1, round(args.planes * share / weight))
         with warnings.catch_warnings():
