@@ -25,7 +25,10 @@ import trimesh  # noqa: E402
 from meshhydro import load_hull  # noqa: E402
 from planes import compare_planes, reference_meshes  # noqa: E402
 
-LIMITS = {"volume": 1e-12, "moment": 1e-12, "cull": 1e-12, "area": 1e-9}
+# manifold3d's cross-sections are rounded to a few 1e-9 of size²: on the grid box at the plane
+# through (0, 0.557, 0.7) with normal (0.0509, 0, -0.9987) it gives 18.22361602 m² where the closed
+# form 2.6 * 7 / |n_z|, trimesh's section (shapely) and the kernel all give 18.223616071662 m²
+LIMITS = {"volume": 1e-12, "moment": 1e-12, "cull": 1e-12, "area": 3e-9}
 
 
 def main(argv: list[str] | None = None) -> int:
