@@ -175,11 +175,15 @@ def _area_error(hull, ref: ManifoldReference, area: float, p: np.ndarray, n: np.
     # one-sided limits by Richardson extrapolation from shifts h and 2h (the section area
     # is a quadratic in the shift while no vertex level is crossed)
     h = 1e-8 * size
-    lo, hi = (2.0 * ref.section_area(p, n, s * h) - ref.section_area(p, n, 2.0 * s * h) for s in (-1.0, 1.0))
+    raw = {t: ref.section_area(p, n, t * h) for t in (-2.0, -1.0, 1.0, 2.0)}
+    lo, hi = 2.0 * raw[-1.0] - raw[-2.0], 2.0 * raw[1.0] - raw[2.0]
     flat = ref.flat_area(hull.vertices, hull.faces, p, n, 1e-12 * size)
     closed = 0.5 * (lo + hi + flat)
     if kind == "face":
-        return max(min(lo, hi, closed) - area, area - max(lo, hi, closed), 0.0)
+        # faces next to the chosen one may lie within h of the plane, so the samples are
+        # not quadratic in the shift: bracket by all of them and the section at the plane
+        span = [lo, hi, closed, ref.section_area(p, n), *raw.values()]
+        return max(min(span) - area, area - max(span), 0.0)
     return abs(area - closed)
 
 
