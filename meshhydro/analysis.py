@@ -49,18 +49,32 @@ class CaseInput:
     label: str
 
 
+def check_cog(hull: FloatingHull, cog: Sequence[float], source: str) -> None:
+    """Refuse a centre of gravity (3,) [m, hull frame] whose x or y lies outside the hull's extent: such a load
+    could float only on its end or its side, and the upright particulars would be meaningless."""
+    g = np.asarray(cog, dtype=float)
+    lo, hi = hull.bounds
+    for i, (axis, what) in enumerate((("x", "length"), ("y", "breadth"))):
+        if not lo[i] <= g[i] <= hi[i]:
+            raise InputError(f"{source}: the centre of gravity {axis} = {g[i]:g} m lies outside the hull's {what} "
+                             f"({lo[i]:.3f} to {hi[i]:.3f} m)")
+
+
 def from_case(path: str, condition_name: str | None = None, *, density: float | None = None) -> CaseInput:
     """A case file's hull and condition (the first unless named); ``density`` overrides the file's [t/m³]."""
     case = read_case(path)
     cond = case.condition(condition_name)
+    hull = case.load_hull()
+    check_cog(hull, cond.cog, f"{path}: condition {cond.name!r}")
     rho = case.density if density is None else float(density)
-    return CaseInput(case.load_hull(), cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}")
+    return CaseInput(hull, cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}")
 
 
 def from_mesh(hull: FloatingHull, source: str, displacement: float, cog: Sequence[float], *, fsm: float = 0.0,
               openings: Sequence[Opening] = (), density: float | None = None) -> CaseInput:
     """A quick check: a loaded mesh with a displacement [t], G (3,) [m] and free-surface moment [t·m]."""
     cond = condition(displacement, cog, name="quick check", fsm=fsm)
+    check_cog(hull, cond.cog, source)
     rho = SEA_WATER if density is None else float(density)
     return CaseInput(hull, cond, tuple(openings), rho, f"{os.path.basename(source)}: Δ {cond.displacement:g} t")
 
@@ -284,7 +298,12 @@ def cross_analysis(hull: FloatingHull, displacements: np.ndarray, heels: np.ndar
 
 def table_analysis(hull: FloatingHull, drafts: np.ndarray, *, heel: float = 0.0, trim: float = 0.0,
                    density: float = SEA_WATER) -> tuple[list[dict[str, float]], Document]:
-    """Hydrostatic particulars over ``drafts`` [m] at one heel and trim [deg], and their report."""
+    """Hydrostatic particulars over ``drafts`` [m] at one heel and trim [deg] (each strictly between -90 and
+    90°: the draft is measured along the hull's z axis), and their report."""
+    for name, a in (("heel", heel), ("trim", trim)):
+        if not (np.isfinite(a) and abs(a) < 90.0):
+            raise InputError(f"{name} {a:g}°: a table over drafts takes heel and trim between -90 and 90° "
+                             f"(drafts are measured along the hull's z axis)")
     rows = [h.to_dict() for h in hull.table(drafts, heel=heel, trim=trim, density=density)]
     digits = {"cb": 4, "cp": 4, "cm": 4, "cwp": 4, "heel": 1, "trim": 2}
     cols = [Column(k, k, UNITS[k], digits.get(k, 3)) for k in FIELDS]

@@ -40,7 +40,6 @@ Every report carries :data:`CAUTION`.
 from __future__ import annotations
 
 import dataclasses
-import math
 import os
 from dataclasses import dataclass, field
 from typing import Any, Callable, Mapping
@@ -51,7 +50,7 @@ from . import tolerances as tol
 from .errors import InputError
 from .hydrostatics import Hydrostatics
 from .loading import Opening
-from .schemas import read_toml
+from .schemas import read_toml, validate_criteria
 from .stability import RightingCurve
 
 #: The caution that every output a safety decision could rest on carries.
@@ -228,13 +227,15 @@ def _vanishing(ctx: Context, p: NoParams) -> Outcome:
 
 @dataclass(frozen=True)
 class Criterion:
-    """One requirement: a registered ``kind``, its typed ``params`` and the minimum value (kind's unit)."""
+    """One requirement: a registered ``kind``, its typed ``params`` and the limit (kind's unit): a lower
+    limit (``minimum``), or an upper one when ``upper`` is true."""
 
     id: str
     kind: str
     minimum: float
     text: str = ""
     params: Any = NoParams()
+    upper: bool = False
 
     def __post_init__(self) -> None:
         if self.kind not in REGISTRY:
@@ -276,60 +277,57 @@ IMO_2008_GENERAL = CriteriaSet(
 
 BUILTIN = {"imo2008": IMO_2008_GENERAL}
 
-_COMMON_KEYS = ("id", "kind", "minimum", "text")
+#: keys every criterion of a file has besides its kind's parameters
+_COMMON_KEYS = ("id", "kind", "minimum", "maximum", "text")
 
 
-def _param_value(raw: Any, f: dataclasses.Field, where: str) -> Any:
-    key = f.metadata.get("toml", f.name)
-    if f.type in (bool, "bool"):
-        if not isinstance(raw, bool):
-            raise InputError(f"{where}: {key} must be true or false")
-        return raw
-    if isinstance(raw, bool):
-        raise InputError(f"{where}: {key} must be a number")
-    try:
-        v = float(raw)
-    except (TypeError, ValueError):
-        raise InputError(f"{where}: {key} must be a number") from None
-    if not math.isfinite(v):
-        raise InputError(f"{where}: {key} must be finite")
-    return v
+def params_from_spec(spec: Any, where: str) -> Any:
+    """The registry's typed parameters of a validated criterion (:data:`meshhydro.schemas.CriterionSpec`).
 
-
-def parse_params(kind: str, table: Mapping[str, Any], where: str) -> Any:
-    """The typed parameters of ``kind`` from a TOML table; errors name ``where`` and the key."""
+    Each field of the kind's parameter dataclass takes the value of its TOML key; a key the file gives
+    that the kind's evaluation does not take is refused (never ignored), as is a kind with no evaluation.
+    """
+    kind = spec.kind
+    if kind not in REGISTRY:
+        raise InputError(f"{where} kind: {kind!r} is not evaluated by this version; evaluated kinds: "
+                         f"{', '.join(REGISTRY)}")
     cls = REGISTRY[kind].params
-    fields = dataclasses.fields(cls)
-    keys = {f.metadata.get("toml", f.name): f for f in fields}
-    extra = sorted(set(table) - set(keys) - set(_COMMON_KEYS))
-    if extra:
-        raise InputError(f"{where}: unknown keys {extra} for kind {kind}; known: {sorted(keys) + list(_COMMON_KEYS)}")
-    missing = [k for k, f in keys.items() if f.metadata.get("required", True) and k not in table]
-    if missing:
-        raise InputError(f"{where}: {kind} needs {' and '.join(missing)} (degrees)")
-    return cls(**{f.name: _param_value(table[k], f, where) for k, f in keys.items() if k in table})
+    given = {k: v for k, v in spec.model_dump(by_alias=True).items() if v is not None and k not in _COMMON_KEYS}
+    kw = {}
+    for f in dataclasses.fields(cls):
+        key = f.metadata.get("toml", f.name)
+        if key in given:
+            kw[f.name] = given.pop(key)
+    unused = [k for k, v in given.items() if v is not False]  # a flag left at false asks for nothing
+    if unused:
+        raise InputError(f"{where} {unused[0]}: not taken by kind {kind} in this version")
+    try:
+        return cls(**kw)
+    except TypeError as exc:
+        raise InputError(f"{where}: kind {kind}: {exc}") from None
+
+
+def criteria_from_spec(spec: Any, source: str) -> CriteriaSet:
+    """A :class:`CriteriaSet` of registry criteria from a validated :class:`~meshhydro.schemas.CriteriaSpec`."""
+    items = []
+    for k, c in enumerate(spec.criteria):
+        where = f"{source}: [criterion {k + 1}]"
+        limit = getattr(c, "limit", None)
+        if limit is None:
+            raise InputError(f"{where} kind: {c.kind!r} is not evaluated by this version; evaluated kinds: "
+                             f"{', '.join(REGISTRY)}")
+        items.append(Criterion(id=str(c.id), kind=c.kind, minimum=float(limit), text=c.text or "",
+                               params=params_from_spec(c, where), upper=not c.is_minimum))
+    return CriteriaSet(name=spec.name or os.path.basename(source), source=spec.source or "", items=tuple(items))
 
 
 def read_criteria(path: str) -> CriteriaSet:
-    """Read a user criteria set (TOML), or a built-in one by name; errors name the file and the criterion."""
+    """Read a user criteria set (TOML, validated by :func:`meshhydro.schemas.validate_criteria`), or a built-in
+    one by name; every error is one line naming the file, the criterion and the key."""
     if path in BUILTIN:
         return BUILTIN[path]
     data = read_toml(path, f"no such criteria file (built-in sets: {', '.join(BUILTIN)})")
-    items = []
-    for k, c in enumerate(data.get("criterion", [])):
-        where = f"{path}: criterion {k + 1}"
-        kind = c.get("kind")
-        if kind not in REGISTRY:
-            raise InputError(f"{where}: kind must be one of {', '.join(REGISTRY)}, got {kind!r}")
-        mn = c.get("minimum")
-        if isinstance(mn, bool) or not isinstance(mn, (int, float)) or not math.isfinite(float(mn)):
-            raise InputError(f"{where}: needs a numeric minimum")
-        items.append(Criterion(id=str(c.get("id", k + 1)), kind=kind, minimum=float(mn),
-                               text=str(c.get("text", "")), params=parse_params(kind, c, where)))
-    if not items:
-        raise InputError(f"{path}: no [[criterion]] entries")
-    return CriteriaSet(name=str(data.get("name", os.path.basename(path))), source=str(data.get("source", "")),
-                       items=tuple(items))
+    return criteria_from_spec(validate_criteria(data, path), path)
 
 
 @dataclass(frozen=True)
@@ -374,12 +372,17 @@ def check(criterion: Criterion, ctx: Context) -> Result:
     except InputError as exc:
         out = Outcome(None, str(exc))
     a = out.attained
-    if a is not None:
+    if criterion.upper:  # an upper limit: met at or below it; a lower bound beyond it fails it
+        ok = a is not None and a <= criterion.minimum + tol.CRITERION_SLACK
+        margin = None if a is None else criterion.minimum - a
+    elif a is not None:
         ok = a >= criterion.minimum - tol.CRITERION_SLACK
+        margin = a - criterion.minimum
     else:
         ok = out.at_least is not None and out.at_least >= criterion.minimum
+        margin = None
     return Result(criterion.id, criterion.text or criterion.kind, ctx.side, criterion.unit, criterion.minimum, a,
-                  None if a is None else a - criterion.minimum, bool(ok), out.note)
+                  margin, bool(ok), out.note)
 
 
 def evaluate(curve: RightingCurve, cset: CriteriaSet = IMO_2008_GENERAL, *, sides: tuple[int, ...] = (1,),

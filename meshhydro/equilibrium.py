@@ -140,8 +140,13 @@ def _loll(ev: Evaluator, v0: float, load: Load, upright: State) -> tuple[State, 
     if st is None:
         raise NotConvergedError("upright GM is negative and no stable heeled position was found: the vessel capsizes")
     gm0 = load_metacentric_heights(upright, load)[0]
+    side = "starboard" if st.heel > 0 else "port"
+    g = load.centre(0.0, 0.0)
+    # either side only when hull and load are both port-starboard symmetric
+    either = " (either side: hull and load are symmetric)" if (
+        ev.hull.is_symmetric and abs(float(g[1])) < tol.CENTRELINE) else ""
     note = (f"upright GM is negative ({gm0:.4f} m): the vessel lolls to "
-            f"{abs(st.heel):.2f}° (either side for a symmetric load); this is not a stable upright condition")
+            f"{abs(st.heel):.2f}° to {side}{either}; this is not a stable upright condition")
     return st, note
 
 

@@ -25,7 +25,7 @@ import numpy as np
 
 from .errors import InputError
 
-__all__ = ["write_atomic", "save_atomic", "save_figure", "figure_format", "emit", "atomic_dir",
+__all__ = ["write_atomic", "save_atomic", "save_figure", "figure_format", "atomic_dir",
            "remove_stale", "cleanup_temps", "text_table", "key_values", "to_csv", "to_json", "csv_number",
            "format_column", "FIGURE_FORMATS", "CSV_DECIMALS"]
 
@@ -271,15 +271,6 @@ def save_figure(path: str, fig: Any, *, dpi: int = 130, allowed: Sequence[str] =
         def writer(tmp: str) -> None:
             fig.savefig(tmp, dpi=dpi, format=fmt)
     save_atomic(path, writer)
-
-
-def emit(path: str | None, text: str) -> None:
-    """Write ``text`` atomically to ``path`` (and say so on stderr), or to stdout when no path."""
-    if path:
-        write_atomic(path, text)
-        print(f"wrote {path}", file=sys.stderr)
-    else:
-        sys.stdout.write(text)
 
 
 # ---------------------------------------------------------------- text

@@ -5,7 +5,8 @@ import argparse
 import sys
 
 from ..analysis import check_analysis, table_analysis
-from .common import density, load_mesh, mesh_args, out_args, output, parse_range, parse_vec, water_args
+from .common import (check_figure, check_finite, density, load_mesh, mesh_args, mesh_option, out_args, output,
+                     parse_range, parse_vec, water_args)
 
 
 # ---------------------------------------------------------------------------- check
@@ -14,9 +15,9 @@ from .common import density, load_mesh, mesh_args, out_args, output, parse_range
 def cmd_check(args: argparse.Namespace) -> int:
     from ..mesh import check_mesh
 
-    md, rep = check_mesh(args.mesh, units=args.units, forward=args.forward, up=args.up,
-                         offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
-                         merge_overlaps=args.merge_overlaps)
+    md, rep = check_mesh(args.mesh, units=mesh_option(args, "units"), forward=mesh_option(args, "forward"),
+                         up=mesh_option(args, "up"), offset=parse_vec(str(mesh_option(args, "offset")), "--offset"),
+                         flip_inside_out=args.flip_inside_out, merge_overlaps=args.merge_overlaps)
     output(args, check_analysis(rep))
     if not rep.usable:
         print(f"meshhydro: {rep.problems[0]}", file=sys.stderr)
@@ -29,8 +30,11 @@ def cmd_check(args: argparse.Namespace) -> int:
 
 def cmd_table(args: argparse.Namespace) -> int:
     drafts = parse_range(args.drafts, "--drafts")
+    check_finite(args, ("heel", "trim"))
+    check_figure(args.plot)
+    rho = density(args)
     hull = load_mesh(args)
-    _, doc = table_analysis(hull, drafts, heel=args.heel, trim=args.trim, density=density(args))
+    _, doc = table_analysis(hull, drafts, heel=args.heel, trim=args.trim, density=rho)
     output(args, doc, args.plot)
     return 0
 
@@ -51,5 +55,5 @@ def register(sub: argparse._SubParsersAction) -> None:
     water_args(t)
     mesh_args(t)
     out_args(t)
-    t.add_argument("--plot", help="also draw the hydrostatic curves to this PNG")
+    t.add_argument("--plot", help="also draw the hydrostatic curves to this file (.png, .svg or .pdf)")
     t.set_defaults(func=cmd_table)

@@ -10,6 +10,8 @@ import argparse
 from .. import analysis
 from ..criteria import read_criteria
 from .common import (
+    check_figure,
+    check_finite,
     mesh_args,
     load_hull_source,
     load_source,
@@ -30,14 +32,15 @@ def _heels(args: argparse.Namespace):
 
 
 def cmd_float(args: argparse.Namespace) -> int:
-    _, doc = analysis.float_analysis(load_source(args))
+    _, doc = analysis.float_analysis(load_source(args, openings=False))
     output(args, doc)
     return 0
 
 
 def cmd_righting(args: argparse.Namespace) -> int:
-    inp = load_source(args)
+    check_figure(args.plot)
     hs = _heels(args)
+    inp = load_source(args)
     bar = progress(args, analysis.curve_count(hs, inp, args.direction), "righting curve")
     _, doc = analysis.righting_analysis(inp, hs, direction=args.direction, free_trim=not args.fixed_trim,
                                         progress=bar)
@@ -47,9 +50,11 @@ def cmd_righting(args: argparse.Namespace) -> int:
 
 
 def cmd_cross(args: argparse.Namespace) -> int:
-    hull, rho = load_hull_source(args)
+    check_figure(args.plot)
+    check_finite(args, ("lcg",))
     ds = parse_range(args.displacements, "--displacements")
     hs = parse_range(args.heels, "--heels")
+    hull, rho = load_hull_source(args)
     bar = progress(args, len(ds) * len(hs), "cross curves")
     _, doc = analysis.cross_analysis(hull, ds, hs, density=rho, lcg=args.lcg, progress=bar)
     bar.close()
@@ -58,9 +63,10 @@ def cmd_cross(args: argparse.Namespace) -> int:
 
 
 def cmd_criteria(args: argparse.Namespace) -> int:
+    check_figure(args.plot)
     cset = read_criteria(args.set)
-    inp = load_source(args)
     hs = _heels(args)
+    inp = load_source(args)
     bar = progress(args, analysis.curve_count(hs, inp, args.direction), "righting curve")
     rep, doc = analysis.criteria_analysis(inp, cset, hs, direction=args.direction, free_trim=not args.fixed_trim,
                                           progress=bar)
@@ -74,7 +80,7 @@ def _curve_opts(p: argparse.ArgumentParser) -> None:
     p.add_argument("--direction", choices=("auto", "both", "starboard", "port"), default="auto",
                    help="heel side(s); auto = both unless hull and load are port-starboard symmetric")
     p.add_argument("--fixed-trim", action="store_true", help="keep the upright trim instead of free trim")
-    p.add_argument("--plot", help="draw the GZ curve to this PNG")
+    p.add_argument("--plot", help="draw the GZ curve to this file (.png, .svg or .pdf)")
     p.add_argument("--quiet", action="store_true", help="no progress bar")
 
 
@@ -96,7 +102,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     c.add_argument("--displacements", required=True, help="START:STOP:STEP [t] or a list")
     c.add_argument("--heels", default="0:90:10", help="heels [deg] (default 0:90:10)")
     c.add_argument("--lcg", type=float, help="fixed LCG [m] instead of level upright flotation")
-    c.add_argument("--plot", help="draw the cross curves to this PNG")
+    c.add_argument("--plot", help="draw the cross curves to this file (.png, .svg or .pdf)")
     c.add_argument("--quiet", action="store_true", help="no progress bar")
     water_args(c)
     mesh_args(c)
