@@ -66,6 +66,13 @@ def test_angle_of_loll_wall_sided():
     expect = math.degrees(math.atan(math.sqrt(2 * 0.1 / bm)))
     assert eq.heel == pytest.approx(expect, abs=1e-6)  # ties go to starboard (positive heel)
     assert eq.gmt > 0  # stable at the angle of loll
+    assert f"lolls to {eq.heel:.2f}° to starboard (either side: hull and load are symmetric)" in eq.note
+    # the same box off the centreline is not port-starboard symmetric: the note names one side only
+    v, f = box(20.0, 6.0, 10.0)
+    shifted = load_hull(tm(v + np.array([0.0, 0.5, 0.0]), f))
+    eq2 = shifted.equilibrium(RHO * 20 * B * T, (10.0, 0.5, kg))
+    assert eq2.loll and eq2.heel == pytest.approx(expect, abs=1e-6)
+    assert "to starboard;" in eq2.note and "either side" not in eq2.note
 
 
 def test_list_from_off_centre_weight_wall_sided():
@@ -252,6 +259,20 @@ def test_criteria_evaluation_and_downflooding(box_hull):
     r2 = {r.id: r for r in rep2.results}
     assert r2["2.2.1.3"].attained == 0.0 and not r2["2.2.1.3"].passed  # flooding before 30°
     assert r2["2.2.1.2"].attained == pytest.approx(c2.area(0, flood))
+
+
+def test_criteria_upper_limit_is_honoured(tmp_path, box_hull):
+    # a criterion with `maximum` is met at or below it (the file format's upper limit)
+    p = tmp_path / "set.toml"
+    p.write_text('[[criterion]]\nid = "low"\nkind = "gm"\nmaximum = 0.5\n'
+                 '[[criterion]]\nid = "high"\nkind = "gm"\nmaximum = 1.0\n')
+    cs = read_criteria(str(p))
+    # box 20 x 6 at T = 1.5, KG 2: GM = T/2 + B²/12T - KG = 0.75 (textbook closed form)
+    c = box_hull.righting_curve(RHO * 180, (10.0, 0.0, 2.0), heels=np.arange(0, 31.0, 5.0))
+    r = {x.id: x for x in evaluate(c, cs).results}
+    assert r["low"].attained == pytest.approx(0.75, abs=1e-9) and not r["low"].passed
+    assert r["low"].margin == pytest.approx(-0.25, abs=1e-9)
+    assert r["high"].passed and r["high"].margin == pytest.approx(0.25, abs=1e-9)
 
 
 def test_user_criteria_file(tmp_path, box_hull):

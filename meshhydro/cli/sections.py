@@ -31,6 +31,14 @@ def _body_table(body_rows: list[dict[str, Any]]) -> list[str]:
             text_table(body_rows, keys, SECTION_UNITS, {**{k: 4 for k in keys}, "body": 0}).rstrip()]
 
 
+def _meta(vessel: str, rho: float, units: dict[str, str]) -> dict[str, Any]:
+    """The JSON meta block: program, vessel, density [t/m³], units by key, caution."""
+    from .. import __version__
+
+    return {"program": f"meshhydro {__version__}", "vessel": vessel, "density": rho,
+            "units": {k: u for k, u in units.items() if u}, "caution": CAUTION}
+
+
 def _loft_format(path: str) -> str:
     """The mesh format of a --loft file from its suffix, checked before computing."""
     if os.path.isdir(path):
@@ -83,9 +91,11 @@ def cmd_sections(args: argparse.Namespace) -> int:
         convergence_plot(conv, args.plot, title=f"Section estimates vs exact at draft {drafts[-1]:g} m: {hull.name}")
         print(f"wrote {args.plot}", file=sys.stderr)
     if args.format == "json":
-        _emit(args, to_json({"stations": xs, "drafts": drafts, "rule": args.rule, "comparison": comparison,
-                             "sectional_areas": areas, "bonjean": bj.rows(), "convergence": conv,
-                             "notes": sorted(notes), **({"bodies": bodies} if bodies else {})}))
+        units = {**SECTION_UNITS, **CMP_UNITS, "stations": "m", "drafts": "m", "sectional_areas": "m2"}
+        _emit(args, to_json({"meta": _meta(hull.name, rho, units), "stations": xs, "drafts": drafts,
+                             "rule": args.rule, "comparison": comparison, "sectional_areas": areas,
+                             "bonjean": bj.rows(), "convergence": conv, "notes": sorted(notes),
+                             **({"bodies": bodies} if bodies else {})}))
     elif args.format == "csv":
         _emit(args, to_csv(comparison, ["draft", "quantity", "exact", "estimate", "difference", "percent"],
                            units={"draft": "m"}))
@@ -153,7 +163,7 @@ def cmd_offsets(args: argparse.Namespace) -> int:
         result["lofted_vs_mesh"] = S.compare_rows(exact, [lofted.hydrostatics(r["draft"], density=rho).to_dict()
                                                           for r in cmp_rows], scale=ref.length)
     if args.format == "json":
-        _emit(args, to_json(result))
+        _emit(args, to_json({"meta": _meta(args.table, rho, SECTION_UNITS), **result}))
     elif args.format == "csv":
         _emit(args, to_csv(sh.rows, list(S.SECTION_FIELDS), units=SECTION_UNITS))
     else:
