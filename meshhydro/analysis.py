@@ -11,6 +11,7 @@ Public: :class:`CaseInput`, :func:`from_case`, :func:`from_mesh`, :func:`choose_
 """
 from __future__ import annotations
 
+import dataclasses
 import os
 from dataclasses import dataclass
 from typing import Callable, Sequence
@@ -47,6 +48,8 @@ class CaseInput:
     openings: tuple[Opening, ...]
     density: float
     label: str
+    #: x [m] of the aft and fore draft marks when the case file gives them (else the waterline's ends)
+    marks: tuple[float | None, float | None] = (None, None)
 
 
 def check_cog(hull: FloatingHull, cog: Sequence[float], source: str) -> None:
@@ -67,7 +70,9 @@ def from_case(path: str, condition_name: str | None = None, *, density: float | 
     hull = case.load_hull()
     check_cog(hull, cond.cog, f"{path}: condition {cond.name!r}")
     rho = case.density if density is None else float(density)
-    return CaseInput(hull, cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}")
+    h = case.spec.hull if case.spec is not None else None
+    marks = (h.x_aft, h.x_fore) if h is not None else (None, None)
+    return CaseInput(hull, cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}", marks)
 
 
 def from_mesh(hull: FloatingHull, source: str, displacement: float, cog: Sequence[float], *, fsm: float = 0.0,
@@ -154,10 +159,26 @@ def _equilibrium_values(inp: CaseInput, eq: Equilibrium) -> list[Quantity]:
     ]
 
 
+def at_marks(eq: Equilibrium, inp: CaseInput) -> Equilibrium:
+    """``eq`` with its fore and aft drafts read at the case's draft marks (x [m]) where it gives them: the
+    waterplane's height above z = 0 on the centreline at that x."""
+    xa, xf = inp.marks
+    if xa is None and xf is None:
+        return eq
+    n, xr = eq.up, inp.hull.x_ref
+
+    def draft_at(x: float) -> float:
+        return float(eq.draft + n[0] * (xr - x) / n[2])
+
+    xa = eq.x_aft if xa is None else float(xa)
+    xf = eq.x_fore if xf is None else float(xf)
+    return dataclasses.replace(eq, x_aft=xa, x_fore=xf, draft_aft=draft_at(xa), draft_fore=draft_at(xf))
+
+
 def float_analysis(inp: CaseInput) -> tuple[Equilibrium, Document]:
     """Free-floating position of the condition, and its report."""
     c = inp.condition
-    eq = inp.hull.equilibrium(c.displacement, c.cog, density=inp.density, fsm=c.fsm)
+    eq = at_marks(inp.hull.equilibrium(c.displacement, c.cog, density=inp.density, fsm=c.fsm), inp)
     sec = Section("equilibrium", "equilibrium:", values=_equilibrium_values(inp, eq))
     if eq.note:
         sec.notes.append(f"note: {eq.note}")

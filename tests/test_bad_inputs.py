@@ -747,3 +747,49 @@ def test_cli_csv_lengths_rounded_to_a_micrometre(capsys):
             if k in ("draft", "lcb", "vcb", "bmt", "kmt", "lwl", "bwl"):
                 assert len(cell.split(".")[1]) <= 6 if "." in cell else True, (k, cell)
             assert "e" not in cell.lower(), (k, cell)  # fixed-point throughout, no exponent form
+
+
+def test_cli_offsets_compare_with_csv(capsys, tmp_path):
+    # the CSV output carries the table's estimates only: a comparison asked for would be computed and dropped
+    assert "--compare: the CSV output holds the table's estimates only" in refused(
+        capsys, "offsets", _offsets(tmp_path), "--compare", BARGE, "--format", "csv")
+
+
+def test_cli_compare_with_g_outside_the_hull(capsys, tmp_path):
+    p = tmp_path / "far.toml"
+    p.write_text(f'[hull]\nmesh = "{BARGE}"\n[[condition]]\nname = "far"\ndisplacement = 20.0\n'
+                 f'cog = [5.9, 40.0, 0.95]\n')
+    msg = refused(capsys, "compare", BARGE_CASE, str(p), "--out", str(tmp_path / "c.png"))
+    assert msg.endswith("the centre of gravity y = 40 m lies outside the hull's breadth (-2.400 to 2.400 m)")
+
+
+def test_cli_case_criteria_set_is_honoured(capsys, tmp_path):
+    from meshhydro.cli import main
+
+    (tmp_path / "ours.toml").write_text('[[criterion]]\nid = "GM-ours"\nkind = "gm"\nminimum = 0.15\n')
+    p = tmp_path / "case.toml"
+    p.write_text(f'[hull]\nmesh = "{BARGE}"\n[criteria]\nset = "ours.toml"\n{COND}')
+    rc = main(["criteria", str(p), "--heels", "0:30:10", "--quiet", "--format", "json"])
+    out = capsys.readouterr().out
+    assert rc == 0 and '"GM-ours"' in out and "2.2.1.1" not in out  # the case's own set, not the default
+    msg = refused(capsys, "criteria", str(p), "--set", "imo2008", "--heels", "0:30:10")
+    assert msg.endswith("[criteria]; give one of them")
+
+
+def test_cli_case_draft_marks_are_honoured(capsys, tmp_path):
+    import json
+    import math
+
+    from meshhydro.cli import main
+
+    p = tmp_path / "marks.toml"
+    p.write_text(f'[hull]\nmesh = "{BARGE}"\nx_aft = 2.0\nx_fore = 10.0\n'
+                 f'[[condition]]\nname = "trimmed"\ndisplacement = 40.0\ncog = [5.0, 0.0, 0.9]\n')
+    assert main(["float", str(p), "--format", "json"]) == 0
+    eq = json.loads(capsys.readouterr().out)["equilibrium"]
+    assert (eq["x_aft"], eq["x_fore"]) == (2.0, 10.0)
+    # drafts at the marks on a plane waterline (trim + bow down): d_fore - d_aft = (x_fore - x_aft) tan(trim),
+    # and the reference point x_ref = 6 m lies midway between the marks (geometry)
+    assert eq["draft_fore"] - eq["draft_aft"] == pytest.approx(8.0 * math.tan(math.radians(eq["trim"])), abs=1e-9)
+    assert 0.5 * (eq["draft_fore"] + eq["draft_aft"]) == pytest.approx(eq["draft"], abs=1e-9)
+    assert eq["trim"] < -0.1  # G aft of mid-length: trimmed by the stern

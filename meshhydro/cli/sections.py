@@ -123,6 +123,9 @@ def cmd_sections(args: argparse.Namespace) -> int:
 def cmd_offsets(args: argparse.Namespace) -> int:
     from .. import sections as S
 
+    if args.format == "csv":
+        refuse(args, ["compare"], "the CSV output holds the table's estimates only; use --format text or json "
+               "for the comparison")
     if not args.compare:
         refuse(args, ["units", "forward", "up", "offset", "flip_inside_out", "merge_overlaps"],
                "mesh options apply to the --compare mesh; none is given")

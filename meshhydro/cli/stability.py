@@ -9,9 +9,11 @@ import argparse
 
 from .. import analysis
 from ..criteria import read_criteria
+from ..errors import InputError
 from .common import (
     check_figure,
     check_finite,
+    is_case,
     mesh_args,
     load_hull_source,
     load_source,
@@ -62,9 +64,26 @@ def cmd_cross(args: argparse.Namespace) -> int:
     return 0
 
 
+def criteria_set(args: argparse.Namespace):
+    """The criteria set: --set, or the case file's ``[criteria] set`` (a path relative to the case file), or
+    imo2008; --set and a different set in the case file are refused."""
+    ref = None
+    if is_case(args.source):
+        from ..loading import read_case
+
+        spec = read_case(args.source).spec
+        if spec is not None and spec.criteria is not None and spec.criteria.set:
+            ref = spec.criteria.set
+            ref = spec.resolve(ref) if ref.endswith(".toml") else ref
+    if args.set and ref and args.set != ref:
+        raise InputError(f"--set {args.set}: {args.source} names the criteria set {ref} in [criteria]; "
+                         f"give one of them")
+    return read_criteria(args.set or ref or "imo2008")
+
+
 def cmd_criteria(args: argparse.Namespace) -> int:
     check_figure(args.plot)
-    cset = read_criteria(args.set)
+    cset = criteria_set(args)
     hs = _heels(args)
     inp = load_source(args)
     bar = progress(args, analysis.curve_count(hs, inp, args.direction), "righting curve")
@@ -111,7 +130,8 @@ def register(sub: argparse._SubParsersAction) -> None:
 
     k = sub.add_parser("criteria", help="check a condition against a criteria set (exit 1 when not met)")
     source_args(k)
-    k.add_argument("--set", default="imo2008", help="imo2008 (built-in) or a criteria TOML file")
+    k.add_argument("--set", help="imo2008 (built-in) or a criteria TOML file (default the case file's "
+                                 "[criteria] set, else imo2008)")
     _curve_opts(k)
     out_args(k)
     k.set_defaults(func=cmd_criteria)

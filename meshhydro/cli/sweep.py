@@ -6,7 +6,7 @@ import os
 import sys
 from typing import Any
 
-from ..analysis import check_angles
+from ..analysis import check_angles, check_cog
 from ..errors import InputError
 from .common import check_figure, load_source, parse_range, parse_size, progress, refuse, source_args
 
@@ -70,6 +70,7 @@ def cmd_compare(args: argparse.Namespace) -> int:
         if key not in cache:
             cache[key] = case.load_hull()
         hull = cache[key]
+        check_cog(hull, cond.cog, f"{path}: condition {cond.name!r}")
         label = f"{os.path.splitext(os.path.basename(path))[0]}: {cond.name}"
         traces.append(heel_trace(hull, cond.displacement, cond.cog, heels, density=case.density, fsm=cond.fsm,
                                  label=label))
