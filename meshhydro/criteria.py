@@ -312,12 +312,11 @@ def criteria_from_spec(spec: Any, source: str) -> CriteriaSet:
     items = []
     for k, c in enumerate(spec.criteria):
         where = f"{source}: [criterion {k + 1}]"
-        limit = getattr(c, "limit", None)
-        if limit is None:
-            raise InputError(f"{where} kind: {c.kind!r} is not evaluated by this version; evaluated kinds: "
-                             f"{', '.join(REGISTRY)}")
+        params = params_from_spec(c, where)
+        # a kind that takes no limit in the file (weather) carries its own: its check's value is a margin >= 0
+        limit = getattr(c, "limit", 0.0)
         items.append(Criterion(id=str(c.id), kind=c.kind, minimum=float(limit), text=c.text or "",
-                               params=params_from_spec(c, where), upper=not c.is_minimum))
+                               params=params, upper=not getattr(c, "is_minimum", True)))
     return CriteriaSet(name=spec.name or os.path.basename(source), source=spec.source or "", items=tuple(items))
 
 
