@@ -793,3 +793,16 @@ def test_cli_case_draft_marks_are_honoured(capsys, tmp_path):
     assert eq["draft_fore"] - eq["draft_aft"] == pytest.approx(8.0 * math.tan(math.radians(eq["trim"])), abs=1e-9)
     assert 0.5 * (eq["draft_fore"] + eq["draft_aft"]) == pytest.approx(eq["draft"], abs=1e-9)
     assert eq["trim"] < -0.1  # G aft of mid-length: trimmed by the stern
+
+
+def test_cli_json_says_vessel_density_and_units(capsys):
+    import json
+
+    from meshhydro.cli import main
+
+    assert main(["righting", BARGE_CASE, "--heels", "0:20:10", "--quiet", "--water", "fresh", "--format",
+                 "json"]) == 0
+    meta = json.loads(capsys.readouterr().out)["meta"]
+    # fresh water is 1.000 t/m³ (README conventions; common practice)
+    assert meta["density"] == 1.0 and meta["vessel"].endswith("brindle_barge.stl")
+    assert meta["units"]["gz"] == "m" and meta["units"]["heel"] == "deg" and meta["caution"].startswith("CAUTION")
