@@ -11,6 +11,7 @@ Public: :class:`CaseInput`, :func:`from_case`, :func:`from_mesh`, :func:`choose_
 """
 from __future__ import annotations
 
+import dataclasses
 import os
 from dataclasses import dataclass
 from typing import Any, Callable, Sequence
@@ -467,7 +468,12 @@ def drafts_for_displacements(hull: FloatingHull, displacements: np.ndarray, *, h
 
 def table_analysis(hull: FloatingHull, drafts: np.ndarray, *, heel: float = 0.0, trim: float = 0.0,
                    density: float = SEA_WATER) -> tuple[list[dict[str, float]], Document]:
-    """Hydrostatic particulars over ``drafts`` [m] at one heel and trim [deg], and their report."""
+    """Hydrostatic particulars over ``drafts`` [m] at one heel and trim [deg] (each strictly between -90 and
+    90°: the draft is measured along the hull's z axis), and their report; rows stop below an open rim."""
+    for name, a in (("heel", heel), ("trim", trim)):
+        if not (np.isfinite(a) and abs(a) < 90.0):
+            raise InputError(f"{name} {a:g}°: a table over drafts takes heel and trim between -90 and 90° "
+                             f"(drafts are measured along the hull's z axis)")
     rim = hull.rim_draft(heel, trim)
     below = [float(t) for t in drafts if rim is None or t <= rim]
     if not below:

@@ -58,7 +58,7 @@ from .arms import GZCurve, arm_analysis, limit_margin
 from .errors import InputError
 from .hydrostatics import Hydrostatics
 from .loading import Opening
-from .schemas import read_toml
+from .schemas import read_toml, validate_criteria
 from .stability import RightingCurve
 
 #: The caution that every output a safety decision could rest on carries.
@@ -413,87 +413,63 @@ IMO_2008_WEATHER = CriteriaSet(
 
 BUILTIN = {"imo2008": IMO_2008_GENERAL, "imo2008-weather": IMO_2008_WEATHER}
 
+#: keys every criterion of a file has besides its kind's parameters
 _COMMON_KEYS = ("id", "kind", "minimum", "maximum", "text")
 
 
-def _param_value(raw: Any, f: dataclasses.Field, where: str) -> Any:
-    key = f.metadata.get("toml", f.name)
-    if f.type in (str, "str"):
-        if not isinstance(raw, str) or not raw:
-            raise InputError(f"{where}: {key} must be a name (text)")
-        return raw
-    if f.type in (bool, "bool"):
-        if not isinstance(raw, bool):
-            raise InputError(f"{where}: {key} must be true or false")
-        return raw
-    if isinstance(raw, bool):
-        raise InputError(f"{where}: {key} must be a number")
-    try:
-        v = float(raw)
-    except (TypeError, ValueError):
-        raise InputError(f"{where}: {key} must be a number") from None
-    if not math.isfinite(v):
-        raise InputError(f"{where}: {key} must be finite")
-    return v
+def params_from_spec(spec: Any, where: str) -> Any:
+    """The registry's typed parameters of a validated criterion (:data:`meshhydro.schemas.CriterionSpec`).
 
-
-def parse_params(kind: str, table: Mapping[str, Any], where: str) -> Any:
-    """The typed parameters of ``kind`` from a TOML table; errors name ``where`` and the key."""
+    Each field of the kind's parameter dataclass takes the value of its TOML key; a key the file gives
+    that the kind's evaluation does not take is refused (never ignored), as is a kind with no evaluation.
+    """
+    kind = spec.kind
+    if kind not in REGISTRY:
+        raise InputError(f"{where} kind: {kind!r} is not evaluated by this version; evaluated kinds: "
+                         f"{', '.join(REGISTRY)}")
     cls = REGISTRY[kind].params
-    fields = dataclasses.fields(cls)
-    keys = {f.metadata.get("toml", f.name): f for f in fields}
-    extra = sorted(set(table) - set(keys) - set(_COMMON_KEYS))
-    if extra:
-        raise InputError(f"{where}: unknown keys {extra} for kind {kind}; known: {sorted(keys) + list(_COMMON_KEYS)}")
-    missing = [k for k, f in keys.items() if f.metadata.get("required", True) and k not in table]
-    if missing:
-        raise InputError(f"{where}: {kind} needs {' and '.join(missing)} (degrees)")
-    return cls(**{f.name: _param_value(table[k], f, where) for k, f in keys.items() if k in table})
+    given = {k: v for k, v in spec.model_dump(by_alias=True).items() if v is not None and k not in _COMMON_KEYS}
+    kw = {}
+    for f in dataclasses.fields(cls):
+        key = f.metadata.get("toml", f.name)
+        if key in given:
+            kw[f.name] = given.pop(key)
+    unused = [k for k, v in given.items() if v is not False]  # a flag left at false asks for nothing
+    if unused:
+        raise InputError(f"{where} {unused[0]}: not taken by kind {kind} in this version")
+    try:
+        return cls(**kw)
+    except TypeError as exc:
+        raise InputError(f"{where}: kind {kind}: {exc}") from None
 
 
-def _limit_value(c: Mapping[str, Any], key: str, where: str) -> float | None:
-    v = c.get(key)
-    if v is None:
-        return None
-    if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(float(v)):
-        raise InputError(f"{where}: {key} must be a finite number, got {v!r}")
-    return float(v)
+def criteria_from_spec(spec: Any, source: str) -> CriteriaSet:
+    """A :class:`CriteriaSet` of registry criteria from a validated :class:`~meshhydro.schemas.CriteriaSpec`.
 
-
-def _weather_items(c: Mapping[str, Any], cid: str, text: str, where: str) -> list[Criterion]:
-    """A user's ``kind = "weather"``: the two parts of IS Code 2.3 with the limits of the Code."""
-    extra = sorted(set(c) - {"id", "kind", "text"})
-    if extra:
-        raise InputError(f"{where}: unknown keys {extra} for kind weather (it takes id and text only; "
-                         "its limits are the Code's and its data come from the case's [weather])")
-    return [dataclasses.replace(w, id=f"{cid} {w.id.split(' ', 1)[1]}", text=(f"{text}: " if text else "") + w.text)
-            for w in WEATHER_ITEMS]
+    A ``kind = "weather"`` entry becomes the two parts of IS Code 2.3 with the Code's own limits (its
+    data come from the case's [weather] and [[windage]])."""
+    items: list[Criterion] = []
+    for k, c in enumerate(spec.criteria):
+        where = f"{source}: [criterion {k + 1}]"
+        cid, text = str(c.id), c.text or ""
+        if c.kind == "weather":
+            items.extend(dataclasses.replace(w, id=f"{cid} {w.id.split(' ', 1)[1]}",
+                                             text=(f"{text}: " if text else "") + w.text) for w in WEATHER_ITEMS)
+            continue
+        params = params_from_spec(c, where)
+        limit = float(c.limit)
+        mn, mx = (limit, None) if c.is_minimum else (None, limit)
+        items.append(Criterion(id=cid, kind=c.kind, minimum=mn, maximum=mx, text=text, params=params))
+    return CriteriaSet(name=spec.name or os.path.basename(source), source=spec.source or "", items=tuple(items))
 
 
 def read_criteria(path: str) -> CriteriaSet:
-    """Read a user criteria set (TOML), or a built-in one by name; errors name the file and the criterion."""
+    """Read a user criteria set (TOML, validated by :func:`meshhydro.schemas.validate_criteria`), or a built-in
+    one by name; every error is one line naming the file, the criterion and the key."""
     if path in BUILTIN:
         return BUILTIN[path]
     data = read_toml(path, f"no such criteria file (built-in sets: {', '.join(BUILTIN)})")
-    items = []
-    for k, c in enumerate(data.get("criterion", [])):
-        where = f"{path}: criterion {k + 1}"
-        kind = c.get("kind")
-        if kind not in REGISTRY:
-            raise InputError(f"{where}: kind must be one of {', '.join(REGISTRY)}, got {kind!r}")
-        cid, text = str(c.get("id", k + 1)), str(c.get("text", ""))
-        if kind == "weather":
-            items.extend(_weather_items(c, cid, text, where))
-            continue
-        mn, mx = (_limit_value(c, key, where) for key in ("minimum", "maximum"))
-        if (mn is None) == (mx is None):
-            raise InputError(f"{where}: give a numeric minimum or a numeric maximum (one of them)")
-        items.append(Criterion(id=cid, kind=kind, minimum=mn, maximum=mx, text=text,
-                               params=parse_params(kind, c, where)))
-    if not items:
-        raise InputError(f"{path}: no [[criterion]] entries")
-    return CriteriaSet(name=str(data.get("name", os.path.basename(path))), source=str(data.get("source", "")),
-                       items=tuple(items))
+    return criteria_from_spec(validate_criteria(data, path), path)
 
 
 @dataclass(frozen=True)

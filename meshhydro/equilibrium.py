@@ -156,11 +156,13 @@ def _loll(ev: Evaluator, v0: float, load: Load, upright: State) -> tuple[State, 
     gm0 = load_metacentric_heights(upright, load)[0]
     if st is None:
         return _settled(ev, v0, load, upright, f"upright GM is negative ({gm0:.4f} m)")
-    either = ev.hull.is_symmetric and abs(upright.heel) < tol.UPRIGHT and abs(load.centre(0.0, upright.trim)[1]) \
-        < tol.CENTRELINE
-    side = "either side, symmetric hull and load" if either else ("starboard" if st.heel > 0 else "port")
+    side = "starboard" if st.heel > 0 else "port"
+    g = load.centre(0.0, 0.0)
+    # either side only when hull and load are both port-starboard symmetric
+    either = " (either side: hull and load are symmetric)" if (
+        ev.hull.is_symmetric and abs(float(g[1])) < tol.CENTRELINE) else ""
     note = (f"upright GM is negative ({gm0:.4f} m): the vessel lolls to "
-            f"{abs(st.heel):.2f}° ({side}); this is not a stable upright condition")
+            f"{abs(st.heel):.2f}° to {side}{either}; this is not a stable upright condition")
     return st, note
 
 

@@ -25,7 +25,7 @@ import numpy as np
 
 from .errors import InputError
 
-__all__ = ["write_atomic", "save_atomic", "save_figure", "figure_format", "emit", "atomic_dir",
+__all__ = ["write_atomic", "save_atomic", "save_figure", "figure_format", "atomic_dir",
            "remove_stale", "cleanup_temps", "text_table", "key_values", "to_csv", "to_json", "csv_number",
            "format_column", "FIGURE_FORMATS", "CSV_DECIMALS"]
 
@@ -273,15 +273,6 @@ def save_figure(path: str, fig: Any, *, dpi: int = 130, allowed: Sequence[str] =
     save_atomic(path, writer)
 
 
-def emit(path: str | None, text: str) -> None:
-    """Write ``text`` atomically to ``path`` (and say so on stderr), or to stdout when no path."""
-    if path:
-        write_atomic(path, text)
-        print(f"wrote {path}", file=sys.stderr)
-    else:
-        sys.stdout.write(text)
-
-
 # ---------------------------------------------------------------- text
 
 def text_table(rows: Sequence[dict[str, Any]], keys: Sequence[str], units: dict[str, str] | None = None,
@@ -403,12 +394,12 @@ CSV_DECIMALS = {"m": 6, "m2": 6, "m²": 6, "m3": 6, "m³": 6, "t": 6, "deg": 6, 
 def csv_number(v: float, decimals: int | None = None) -> str:
     """A float for CSV: rounded to ``decimals`` places, or else to 12 significant digits (which drops the
     binary noise of 0.39999999999999997 but keeps every digit the data mean), written shortest
-    (``'0.4'``); no ``-0``; non-finite as an empty cell."""
+    (``'0.4'``) in fixed-point, never in exponent form (``'0.000001'``); no ``-0``; non-finite as an empty cell."""
     f = float(v)
     if not math.isfinite(f):
         return ""
     r = round(f, decimals) if decimals is not None else float(f"{f:.12g}")
-    return repr(r + 0.0) if r != 0 else "0.0"
+    return np.format_float_positional(r + 0.0, trim="0") if r != 0 else "0.0"
 
 
 def _fmt_csv(v: Any, decimals: int | None) -> str:

@@ -13,7 +13,8 @@ from typing import Callable
 
 from .document import Document, Quantity, Section, Table
 from .errors import InputError
-from .output import key_values, text_table, to_csv, to_json
+from . import __version__
+from .output import CSV_DECIMALS, csv_number, key_values, text_table, to_csv, to_json
 
 
 def _values_text(values: list[Quantity]) -> str:
@@ -52,24 +53,53 @@ def render_text(doc: Document) -> str:
 
 
 def render_csv(doc: Document) -> str:
-    """The primary table (all columns) or the primary section's values as CSV."""
+    """The primary table (all columns) or the primary section's values as CSV, numbers rounded by their
+    unit (:data:`~meshhydro.output.CSV_DECIMALS`: lengths to 1e-6 m)."""
     try:
         t = doc.table(doc.primary)
-        return to_csv(t.rows, [c.key for c in t.columns])
+        return to_csv(t.rows, [c.key for c in t.columns], units={c.key: c.unit for c in t.columns})
     except KeyError:
         pass
     try:
         s = doc.section(doc.primary)
     except KeyError:
         raise InputError(f"{doc.title}: this output has no table to write as CSV") from None
-    rows = [{"quantity": q.label, "value": q.value, "unit": q.unit} for q in s.values]
+    rows = [{"quantity": q.label, "value": _csv_value(q), "unit": q.unit} for q in s.values]
     return to_csv(rows, ["quantity", "value", "unit"])
 
 
+def _csv_value(q: Quantity) -> object:
+    """A quantity's value for CSV: a float as text rounded by its unit, anything else as is."""
+    if isinstance(q.value, float):
+        return csv_number(q.value, CSV_DECIMALS.get(q.unit))
+    return q.value
+
+
+def units_of(doc: Document) -> dict[str, str]:
+    """Unit of every column and quantity of the document, by key (those with a unit)."""
+    units: dict[str, str] = {}
+    stack = list(doc.sections)
+    while stack:
+        s = stack.pop(0)
+        units.update({q.key: q.unit for q in s.values if q.unit})
+        for t in s.tables:
+            units.update({c.key: c.unit for c in t.columns if c.unit})
+        stack[0:0] = s.sections
+    return units
+
+
+def meta_of(doc: Document) -> dict[str, object]:
+    """What a reader of the JSON needs besides the numbers: program, vessel, density, units, caution."""
+    return {"program": f"meshhydro {__version__}", "vessel": doc.vessel, **doc.meta, "units": units_of(doc),
+            "caution": doc.cautions[0] if doc.cautions else None}
+
+
 def render_json(doc: Document) -> str:
-    """The analysis' payload as JSON, or the whole document when it has none."""
+    """The analysis' payload as JSON with a ``meta`` block (program, vessel, density, units), or the whole
+    document when it has no payload. A payload that is a list goes under ``rows``."""
     if doc.data is not None:
-        return to_json(doc.data)
+        data = doc.data if isinstance(doc.data, dict) else {"rows": doc.data}
+        return to_json({"meta": meta_of(doc), **data})
     return to_json(dataclasses.asdict(doc))
 
 

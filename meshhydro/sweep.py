@@ -16,14 +16,13 @@ fixed in the hull and M lies on B at every angle (BM = 0); the trace carries the
 
 :func:`write_sweep` renders frames, the section view, a contact sheet and a GIF into a
 folder. It builds everything in a temporary folder beside the target and swaps it in
-only when complete; a target that holds anything but an earlier sweep is refused.
+only when complete (:func:`meshhydro.output.atomic_dir`: removed on error, SIGINT or SIGTERM, and a folder
+left by a killed run is removed on the next run); a target that holds anything but an earlier sweep is refused.
 """
 from __future__ import annotations
 
 import math
 import os
-import shutil
-import tempfile
 import time
 from dataclasses import dataclass
 from typing import Any, Sequence
@@ -35,7 +34,7 @@ from .frames import SEA_WATER
 from .hull import Hull, vec3
 from .stability import RightingCurve, righting_curve
 from .submerged import NOTE as SUBMERGED_NOTE
-from .output import to_json
+from .output import atomic_dir, to_json
 
 MARKER = ".meshhydro-sweep"
 
@@ -111,29 +110,13 @@ def heel_trace(hull: Hull, displacement: float, cog: Sequence[float], heels: Seq
                                 fsm=fsm, progress=progress, submerged_depth=submerged_depth), label)
 
 
-def _prepare_target(out: str) -> str:
-    """Check the output folder and return a fresh temporary folder beside it."""
-    out = os.path.abspath(out)
-    parent = os.path.dirname(out)
-    if not os.path.isdir(parent):
-        raise InputError(f"{out}: the parent folder {parent} does not exist")
+def _check_target(out: str) -> None:
+    """Refuse an output path that is a file, or a folder holding anything but an earlier sweep."""
     if os.path.exists(out):
         if not os.path.isdir(out):
             raise InputError(f"{out}: exists and is not a folder")
         if os.listdir(out) and not os.path.exists(os.path.join(out, MARKER)):
             raise InputError(f"{out}: folder is not empty and holds no earlier sweep; choose another folder")
-    return tempfile.mkdtemp(prefix="." + os.path.basename(out) + ".", dir=parent)
-
-
-def _swap_in(tmp: str, out: str) -> None:
-    out = os.path.abspath(out)
-    old = None
-    if os.path.exists(out):
-        old = out + f".old-{os.getpid()}-{int(time.time() * 1000)}"
-        os.rename(out, old)
-    os.rename(tmp, out)
-    if old:
-        shutil.rmtree(old, ignore_errors=True)
 
 
 def contact_sheet(paths: Sequence[str], out: str, *, columns: int | None = None, pad: int = 6) -> None:
@@ -174,10 +157,11 @@ def write_sweep(hull: Hull, trace: Trace, out: str, *, view: str = "both", size:
     """
     if view not in ("3d", "section", "both"):
         raise InputError(f"view must be 3d, section or both, got {view!r}")
-    tmp = _prepare_target(out)
+    out = os.path.abspath(out)
+    _check_target(out)
     written: list[str] = []
     tt = timings if timings is not None else {}
-    try:
+    with atomic_dir(out) as tmp:
         with open(os.path.join(tmp, MARKER), "w") as fh:
             fh.write("outputs of meshhydro sweep; this folder is replaced whole on the next run\n")
         with open(os.path.join(tmp, "trace.json"), "w") as fh:
@@ -217,8 +201,4 @@ def write_sweep(hull: Hull, trace: Trace, out: str, *, view: str = "both", size:
                 animated_gif(frames, os.path.join(tmp, "sweep.gif"))
                 written.append("sweep.gif")
             tt["sheet_gif"] = time.perf_counter() - t
-        _swap_in(tmp, out)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
     return written

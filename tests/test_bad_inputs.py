@@ -536,3 +536,262 @@ def test_shipped_case_files_validate():
         path = os.path.join(here, f)
         spec = validate_case(read_toml(path), path)
         assert spec.conditions and os.path.isabs(spec.mesh_path)
+
+
+# ---------------------------------------------------------------- the command line
+# Each path below once ended in a traceback, a silently ignored option or a wrong file. The rule checked is the
+# README's: an error is one line on standard error, exit 2 for bad input, never a traceback; every option is
+# honoured or refused.
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+BARGE = os.path.join(ROOT, "meshes", "brindle_barge.stl")
+BARGE_CASE = os.path.join(ROOT, "meshes", "cases", "brindle_barge.toml")
+QUICK = ["--displacement", "20", "--cog", "5.9,0,0.95"]
+
+
+def refused(capsys, *argv: str, code: int = 2) -> str:
+    """Run the CLI in-process; assert the exit code and a single error line without a traceback."""
+    from meshhydro.cli import main
+
+    rc = main([str(a) for a in argv])
+    out, err = capsys.readouterr()
+    lines = err.strip().splitlines()
+    assert rc == code, err
+    assert len(lines) == 1 and lines[0].startswith("meshhydro: error: "), err
+    assert "Traceback" not in err
+    return lines[0]
+
+
+COND = '[[condition]]\nname = "light"\ndisplacement = 20.0\ncog = [5.9, 0.0, 0.95]\n'
+
+
+def test_cli_table_at_trim_90(capsys):
+    msg = refused(capsys, "table", BARGE, "--drafts", "0.5", "--trim", "90")
+    assert "trim 90°: a table over drafts takes heel and trim between -90 and 90°" in msg
+
+
+def test_cli_table_at_heel_90(capsys):
+    # at 90° of heel the waterplane holds the z axis: every draft would give the same row
+    assert "heel 90°" in refused(capsys, "table", BARGE, "--drafts", "0.5,0.6", "--heel", "90")
+
+
+def test_cli_float_with_g_far_outside_the_hull(capsys):
+    msg = refused(capsys, "float", BARGE, "--displacement", "20", "--cog", "1000,0,1")
+    assert "centre of gravity x = 1000 m lies outside the hull's length (x 0.000..12.000 m)" in msg
+
+
+def test_cli_cross_curves_lcg_nan(capsys):
+    assert refused(capsys, "cross-curves", BARGE, "--displacements", "20", "--lcg", "nan").endswith(
+        "--lcg nan is not a finite number")
+
+
+def test_cli_displacement_inf(capsys):
+    assert "--displacement inf is not a finite number" in refused(capsys, "float", BARGE, "--displacement", "inf",
+                                                                  "--cog", "5.9,0,0.95")
+
+
+@pytest.mark.parametrize("top, rest, where", [
+    ("water = 1.0", COND, "water: must be a table"),
+    ("", '[[condition]]\nname = "a"\nitems = 5\n', "[condition 1] items: must be a list, got 5"),
+    ('condition = "heavy"', "", "condition"),
+    ("opening = 5", COND, "opening"),
+])
+def test_cli_case_file_of_wrong_shape(capsys, tmp_path, top, rest, where):
+    p = tmp_path / "case.toml"
+    p.write_text(f'{top}\n[hull]\nmesh = "{BARGE}"\n{rest}')  # top-level keys come before the first table
+    msg = refused(capsys, "float", str(p))
+    assert str(p) in msg and where in msg
+
+
+def test_cli_case_file_not_utf8(capsys, tmp_path):
+    p = tmp_path / "latin1.toml"
+    p.write_bytes(b'[hull]\nmesh = "caf\xe9.stl"\n')
+    assert "not UTF-8 text: byte 0xe9" in refused(capsys, "float", str(p))
+
+
+@pytest.mark.parametrize("criterion, where", [
+    ('criterion = "gm"\nminimum = 0.15', "[criterion 1] kind: missing; this key is required"),
+    ('kind = "area"\nfrom = 40\nto = 0\nminimum = 0.05', "[criterion 1] to: must be above from (40°), got 0°"),
+    ('kind = "area"\nfrom = 0\nto = 30\nto_flooding = "false"\nminimum = 0.05',
+     "[criterion 1] to_flooding: must be true or false, got 'false'"),
+])
+def test_cli_criteria_file_refused(capsys, tmp_path, criterion, where):
+    p = tmp_path / "set.toml"
+    p.write_text(f"[[criterion]]\n{criterion}\n")
+    msg = refused(capsys, "criteria", BARGE_CASE, "--set", str(p), "--heels", "0:40:10")
+    assert msg == f"meshhydro: error: {p}: {where}"
+
+
+def _offsets(tmp_path) -> str:
+    from meshhydro import load_hull, sections as S
+
+    hull = load_hull(BARGE)
+    p = tmp_path / "off.csv"
+    p.write_text(S.offsets_from_mesh(hull, 4, 4).to_csv())
+    return str(p)
+
+
+def test_cli_offsets_loft_to_a_folder(capsys, tmp_path):
+    d = tmp_path / "dir"
+    d.mkdir()
+    assert "is a folder" in refused(capsys, "offsets", _offsets(tmp_path), "--loft", str(d))
+
+
+def test_cli_offsets_loft_to_a_point_cloud_suffix(capsys, tmp_path):
+    msg = refused(capsys, "offsets", _offsets(tmp_path), "--loft", str(tmp_path / "x.xyz"))
+    assert "cannot write a mesh with suffix .xyz; use .stl, .obj, .ply, .off" in msg
+    assert sorted(os.listdir(tmp_path)) == ["off.csv"]
+
+
+def test_cli_offsets_mesh_options_without_compare(capsys, tmp_path):
+    assert "--units: mesh options apply to the --compare mesh" in refused(
+        capsys, "offsets", _offsets(tmp_path), "--units", "mm")
+
+
+@pytest.mark.parametrize("cmd", [["table", BARGE, "--drafts", "0.5"], ["righting", BARGE_CASE],
+                                 ["criteria", BARGE_CASE], ["cross-curves", BARGE, "--displacements", "20"],
+                                 ["sections", BARGE]])
+def test_cli_plot_suffix_refused_before_computing(capsys, tmp_path, cmd):
+    msg = refused(capsys, *cmd, "--plot", str(tmp_path / "gz.jpg"))
+    assert "cannot write a figure with suffix .jpg; use .png, .svg, .pdf" in msg
+    assert os.listdir(tmp_path) == []
+
+
+def test_cli_compare_out_suffix_refused(capsys, tmp_path):
+    assert "--out" in refused(capsys, "compare", BARGE_CASE, BARGE_CASE, "--out", str(tmp_path / "c.jpg"))
+
+
+@pytest.mark.parametrize("opt", [["--units", "mm"], ["--up", "+y"], ["--forward=-x"], ["--offset", "1,0,0"],
+                                 ["--merge-overlaps"], ["--flip-inside-out"]])
+def test_cli_mesh_options_with_a_case_file(capsys, opt):
+    msg = refused(capsys, "float", BARGE_CASE, *opt)
+    assert msg.startswith(f"meshhydro: error: {opt[0].split('=')[0]}: not taken with a case file; the case file's [hull] table")
+
+
+def test_cli_mesh_options_with_a_case_file_for_cross_curves(capsys):
+    assert "--units: not taken with a case file" in refused(capsys, "cross-curves", BARGE_CASE, "--displacements",
+                                                            "20", "--units", "mm")
+
+
+def test_cli_water_and_density_both(capsys):
+    assert refused(capsys, "float", BARGE, *QUICK, "--water", "fresh", "--density", "1.025").endswith(
+        "--water fresh and --density 1.025: give one of them, not both")
+
+
+@pytest.mark.parametrize("opt", [["--fsm", "2"], ["--opening", "door=2,0,2"], ["--displacement", "20"]])
+def test_cli_load_options_with_a_case_file(capsys, opt):
+    assert "not taken with a case file" in refused(capsys, "righting", BARGE_CASE, *opt)
+
+
+def test_cli_condition_with_a_mesh(capsys):
+    assert "--condition: " in refused(capsys, "float", BARGE, *QUICK, "--condition", "light")
+
+
+def test_cli_opening_where_unused(capsys, tmp_path):
+    assert "--opening: this command does not use openings" in refused(capsys, "float", BARGE, *QUICK, "--opening",
+                                                                      "door=2,0,2")
+    assert "--opening: this command does not use openings" in refused(
+        capsys, "sweep", BARGE, *QUICK, "--opening", "door=2,0,2", "--out", str(tmp_path / "s"))
+
+
+def test_cli_sweep_3d_options_with_section_view(capsys, tmp_path):
+    msg = refused(capsys, "sweep", BARGE_CASE, "--view", "section", "--gif", "--out", str(tmp_path / "s"))
+    assert "--gif: these shape the 3D frames" in msg
+
+
+# ---------------------------------------------------------------- files follow what was asked for
+
+
+def test_cli_plot_writes_the_format_its_suffix_names(capsys, tmp_path):
+    from meshhydro.cli import main
+
+    pdf, svg = tmp_path / "curves.pdf", tmp_path / "gz.svg"
+    assert main(["table", BARGE, "--drafts", "0.4,0.8", "--plot", str(pdf)]) == 0
+    assert main(["righting", BARGE_CASE, "--heels", "0:30:10", "--quiet", "--plot", str(svg)]) == 0
+    capsys.readouterr()
+    # file signatures: PDF files begin with "%PDF-" (ISO 32000-1, 7.5.2); SVG is XML with an <svg> root (W3C SVG 1.1)
+    assert pdf.read_bytes().startswith(b"%PDF-")
+    assert b"<svg" in svg.read_bytes()[:2000]
+
+
+def test_cli_compare_writes_svg(capsys, tmp_path):
+    from meshhydro.cli import main
+
+    out = tmp_path / "c.svg"
+    light = f"{BARGE_CASE}@light"
+    assert main(["compare", BARGE_CASE, light, "--heels", "0:10:5", "--out", str(out)]) == 0
+    capsys.readouterr()
+    assert b"<svg" in out.read_bytes()[:2000]  # W3C SVG 1.1: an XML document with an <svg> root
+
+
+def test_cli_csv_lengths_rounded_to_a_micrometre(capsys):
+    from meshhydro.cli import main
+
+    assert main(["table", BARGE, "--drafts", "0.1,0.3,0.7", "--format", "csv"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    head = lines[0].split(",")
+    for line in lines[1:]:
+        for k, cell in zip(head, line.split(","), strict=True):
+            # lengths in metres to 1e-6 m (what the data mean), no binary noise such as 0.30000000000000004
+            if k in ("draft", "lcb", "vcb", "bmt", "kmt", "lwl", "bwl"):
+                assert len(cell.split(".")[1]) <= 6 if "." in cell else True, (k, cell)
+            assert "e" not in cell.lower(), (k, cell)  # fixed-point throughout, no exponent form
+
+
+def test_cli_offsets_compare_with_csv(capsys, tmp_path):
+    # the CSV output carries the table's estimates only: a comparison asked for would be computed and dropped
+    assert "--compare: the CSV output holds the table's estimates only" in refused(
+        capsys, "offsets", _offsets(tmp_path), "--compare", BARGE, "--format", "csv")
+
+
+def test_cli_compare_with_g_outside_the_hull(capsys, tmp_path):
+    p = tmp_path / "far.toml"
+    p.write_text(f'[hull]\nmesh = "{BARGE}"\n[[condition]]\nname = "far"\ndisplacement = 20.0\n'
+                 f'cog = [5.9, 40.0, 0.95]\n')
+    msg = refused(capsys, "compare", BARGE_CASE, str(p), "--out", str(tmp_path / "c.png"))
+    assert "centre of gravity y = 40 m lies outside the hull's breadth (y -2.400..2.400 m)" in msg
+
+
+def test_cli_case_criteria_set_is_honoured(capsys, tmp_path):
+    from meshhydro.cli import main
+
+    (tmp_path / "ours.toml").write_text('[[criterion]]\nid = "GM-ours"\nkind = "gm"\nminimum = 0.15\n')
+    p = tmp_path / "case.toml"
+    p.write_text(f'[hull]\nmesh = "{BARGE}"\n[criteria]\nset = "ours.toml"\n{COND}')
+    rc = main(["criteria", str(p), "--heels", "0:30:10", "--quiet", "--format", "json"])
+    out = capsys.readouterr().out
+    assert rc == 0 and '"GM-ours"' in out and "2.2.1.1" not in out  # the case's own set, not the default
+    msg = refused(capsys, "criteria", str(p), "--set", "imo2008", "--heels", "0:30:10")
+    assert msg.endswith("[criteria]; give one of them")
+
+
+def test_cli_case_draft_marks_are_honoured(capsys, tmp_path):
+    import json
+    import math
+
+    from meshhydro.cli import main
+
+    p = tmp_path / "marks.toml"
+    p.write_text(f'[hull]\nmesh = "{BARGE}"\nx_aft = 2.0\nx_fore = 10.0\n'
+                 f'[[condition]]\nname = "trimmed"\ndisplacement = 40.0\ncog = [5.0, 0.0, 0.9]\n')
+    assert main(["float", str(p), "--format", "json"]) == 0
+    eq = json.loads(capsys.readouterr().out)["equilibrium"]
+    assert (eq["x_aft"], eq["x_fore"]) == (2.0, 10.0)
+    # drafts at the marks on a plane waterline (trim + bow down): d_fore - d_aft = (x_fore - x_aft) tan(trim),
+    # and the reference point x_ref = 6 m lies midway between the marks (geometry)
+    assert eq["draft_fore"] - eq["draft_aft"] == pytest.approx(8.0 * math.tan(math.radians(eq["trim"])), abs=1e-9)
+    assert 0.5 * (eq["draft_fore"] + eq["draft_aft"]) == pytest.approx(eq["draft"], abs=1e-9)
+    assert eq["trim"] < -0.1  # G aft of mid-length: trimmed by the stern
+
+
+def test_cli_json_says_vessel_density_and_units(capsys):
+    import json
+
+    from meshhydro.cli import main
+
+    assert main(["righting", BARGE_CASE, "--heels", "0:20:10", "--quiet", "--water", "fresh", "--format",
+                 "json"]) == 0
+    meta = json.loads(capsys.readouterr().out)["meta"]
+    # fresh water is 1.000 t/m³ (README conventions; common practice)
+    assert meta["density"] == 1.0 and meta["vessel"].endswith("brindle_barge.stl")
+    assert meta["units"]["gz"] == "m" and meta["units"]["heel"] == "deg" and meta["caution"].startswith("CAUTION")

@@ -33,8 +33,12 @@ def run(*args):
 def test_table_json_matches_api_keys(box_stl, tmp_path, capsys):
     out = tmp_path / "t.json"
     assert main(["table", box_stl, "--drafts", "1:3:1", "--format", "json", "--out", str(out)]) == 0
-    rows = json.loads(out.read_text())
+    doc = json.loads(out.read_text())
+    rows = doc["rows"]
     assert [r["draft"] for r in rows] == [1.0, 2.0, 3.0]
+    # the meta block says what the numbers are: vessel, density, units
+    assert doc["meta"]["density"] == 1.025 and doc["meta"]["vessel"].endswith("box.stl")
+    assert doc["meta"]["units"]["draft"] == "m" and doc["meta"]["units"]["displacement"] == "t"
     # box closed form BMt = B²/12T (textbook)
     assert rows[1]["bmt"] == pytest.approx(36 / 24)
     for k in "draft volume displacement lcb tcb vcb awp lcf tcf tpc mct bmt bml kmt kml cb cp cm cwp wsa lwl bwl".split():

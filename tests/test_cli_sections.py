@@ -71,3 +71,20 @@ def test_sweep_and_compare_cli(tmp_path):
     assert (tmp_path / "c.png").stat().st_size > 5000
     code, so, err = run("sweep", str(tmp_path / "b.toml"), "--out", str(out), "--size", "big")
     assert code == 2 and "--size" in err
+
+
+def test_sections_of_a_catamaran_per_body(capsys):
+    # two demihulls: the estimate is made per body about its own centreline (never a filled tunnel), so the
+    # total is close to the exact volume of the mesh and the per-body volumes add up to it
+    cat = os.path.join(ROOT, "meshes", "twinfin_cat.stl")
+    assert main(["sections", cat, "--stations", "10", "--waterlines", "8", "--drafts", "0.5", "--format",
+                 "json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    vol = [r for r in d["comparison"] if r["quantity"] == "volume"][0]
+    assert abs(vol["percent"]) < 1.0
+    bodies = d["bodies"]
+    assert sorted(b["body"] for b in bodies) == [0, 1]
+    assert sum(b["volume"] for b in bodies) == pytest.approx(vol["estimate"], rel=1e-12)
+    assert d["meta"]["density"] == 1.025 and d["meta"]["units"]["draft"] == "m"
+    assert main(["sections", cat, "--stations", "10", "--waterlines", "8", "--drafts", "0.5"]) == 0
+    assert "per body (each about its own centreline):" in capsys.readouterr().out

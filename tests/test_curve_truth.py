@@ -178,8 +178,8 @@ def test_centre_of_gravity_outside_the_hull_is_refused(box_hull):
 
 
 @pytest.mark.parametrize("argv,code,text", [
-    (["table", "M", "--drafts", "0.5", "--trim", "90"], 2, "does not fix the waterplane"),
-    (["table", "M", "--drafts", "0.5", "--heel=-90"], 2, "does not fix the waterplane"),
+    (["table", "M", "--drafts", "0.5", "--trim", "90"], 2, "takes heel and trim between -90 and 90"),
+    (["table", "M", "--drafts", "0.5", "--heel=-90"], 2, "takes heel and trim between -90 and 90"),
     (["float", "M", "--displacement", "40", "--cog", "1000,0,1"], 2, "outside the hull"),
 ])
 def test_extreme_attitudes_cli(argv, code, text):

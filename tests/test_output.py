@@ -327,3 +327,8 @@ def test_plots_follow_the_suffix(tmp_path):
     with pytest.raises(InputError, match=r"h\.jpg: cannot write a figure with suffix \.jpg; use \.png, \.svg, \.pdf"):
         plots.hydrostatic_curves(rows, str(tmp_path / "h.jpg"))
     assert sorted(os.listdir(tmp_path)) == ["h.pdf", "h.svg"]
+
+
+def test_csv_never_in_exponent_form():
+    # a fixed-point CSV column reads the same in every spreadsheet; "6.637e-05" did not
+    assert to_csv([{"a": 6.637e-05, "b": 1e-06}], ["a", "b"], units={"b": "m"}).splitlines()[1] == "0.00006637,0.000001"

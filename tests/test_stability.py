@@ -66,6 +66,13 @@ def test_angle_of_loll_wall_sided():
     expect = math.degrees(math.atan(math.sqrt(2 * 0.1 / bm)))
     assert eq.heel == pytest.approx(expect, abs=1e-6)  # ties go to starboard (positive heel)
     assert eq.gmt > 0  # stable at the angle of loll
+    assert f"lolls to {eq.heel:.2f}° to starboard (either side: hull and load are symmetric)" in eq.note
+    # the same box off the centreline is not port-starboard symmetric: the note names one side only
+    v, f = box(20.0, 6.0, 10.0)
+    shifted = load_hull(tm(v + np.array([0.0, 0.5, 0.0]), f))
+    eq2 = shifted.equilibrium(RHO * 20 * B * T, (10.0, 0.5, kg))
+    assert eq2.loll and eq2.heel == pytest.approx(expect, abs=1e-6)
+    assert "to starboard;" in eq2.note and "either side" not in eq2.note
 
 
 def test_list_from_off_centre_weight_wall_sided():
@@ -254,6 +261,20 @@ def test_criteria_evaluation_and_downflooding(box_hull):
     assert r2[1].attained == pytest.approx(c2.area(0, flood))
 
 
+def test_criteria_upper_limit_is_honoured(tmp_path, box_hull):
+    # a criterion with `maximum` is met at or below it (the file format's upper limit)
+    p = tmp_path / "set.toml"
+    p.write_text('[[criterion]]\nid = "low"\nkind = "gm"\nmaximum = 0.5\n'
+                 '[[criterion]]\nid = "high"\nkind = "gm"\nmaximum = 1.0\n')
+    cs = read_criteria(str(p))
+    # box 20 x 6 at T = 1.5, KG 2: GM = T/2 + B²/12T - KG = 0.75 (textbook closed form)
+    c = box_hull.righting_curve(RHO * 180, (10.0, 0.0, 2.0), heels=np.arange(0, 31.0, 5.0))
+    r = {x.id: x for x in evaluate(c, cs).results}
+    assert r["low"].attained == pytest.approx(0.75, abs=1e-9) and not r["low"].passed
+    assert r["low"].margin == pytest.approx(-0.25, abs=1e-9)
+    assert r["high"].passed and r["high"].margin == pytest.approx(0.25, abs=1e-9)
+
+
 def test_user_criteria_file(tmp_path, box_hull):
     p = tmp_path / "set.toml"
     p.write_text('name = "ours"\n[[criterion]]\nid = "R"\nkind = "range"\nminimum = 50\n'
@@ -268,15 +289,15 @@ def test_user_criteria_file(tmp_path, box_hull):
     assert rep.results[1].passed
     bad = tmp_path / "bad.toml"
     bad.write_text('[[criterion]]\nkind = "bogus"\nminimum = 1\n')
-    with pytest.raises(InputError, match="criterion 1: kind must be one of"):
+    with pytest.raises(InputError, match=r"\[criterion 1\] kind: must be one of"):
         read_criteria(str(bad))
     unknown = tmp_path / "unknown.toml"
     unknown.write_text('[[criterion]]\nkind = "gz_at"\nangle = 20\nminimum = 0.1\nangel = 3\n')
-    with pytest.raises(InputError, match="criterion 1: unknown keys \\['angel'\\]"):
+    with pytest.raises(InputError, match=r"\[criterion 1\] angel: unknown key; did you mean angle\?"):
         read_criteria(str(unknown))
     missing = tmp_path / "missing.toml"
     missing.write_text('[[criterion]]\nkind = "area"\nfrom = 0\nminimum = 0.1\n')
-    with pytest.raises(InputError, match="criterion 1: area needs to"):
+    with pytest.raises(InputError, match=r"\[criterion 1\] to: missing"):
         read_criteria(str(missing))
 
 

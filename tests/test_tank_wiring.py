@@ -248,7 +248,7 @@ def test_tanks_command(case_file, capsys, tmp_path):
 def test_table_by_displacement(box_hull, tmp_path, capsys):
     trimesh.Trimesh(*box(L, B, D), process=False).export(tmp_path / "box.stl")
     assert main(["table", str(tmp_path / "box.stl"), "--displacements", "123,246", "--format", "json"]) == 0
-    rows = json.loads(capsys.readouterr().out)
+    rows = json.loads(capsys.readouterr().out)["rows"]
     assert [r["displacement"] for r in rows] == pytest.approx([123.0, 246.0], rel=1e-9)
     assert rows[0]["draft"] == pytest.approx(123.0 / 1.025 / (L * B), rel=1e-9)  # box: T = V / (L B)
     assert main(["table", str(tmp_path / "box.stl"), "--displacements", "1", "--drafts", "1"]) == 2

@@ -16,6 +16,8 @@ import math
 
 import numpy as np
 import pytest
+
+from meshhydro.errors import InputError
 import shapely
 import trimesh
 from scipy.integrate import quad
@@ -153,7 +155,13 @@ def test_text_output_lists_the_weather_values_and_imo2008_stays_general(tmp_path
     text = capsys.readouterr().out
     for label in ("lw1", "lw2", "θ0", "θ1", "θ2", "area a", "area b", "windage area A", "lever Z", "X1"):
         assert label in text
-    assert main(["criteria", path, "--set", "imo2008", "--heels", "0:60:2", "--quiet", "--format", "json"]) == 0
+    # a --set other than the case file's [criteria] set is a conflict, refused (never silently preferred)
+    assert main(["criteria", path, "--set", "imo2008", "--heels", "0:60:2", "--quiet"]) == 2
+    capsys.readouterr()
+    general = tmp_path / "general"
+    general.mkdir()
+    path = _case(general, set_name="imo2008")
+    assert main(["criteria", path, "--heels", "0:60:2", "--quiet", "--format", "json"]) == 0
     out = json.loads(capsys.readouterr().out)
     assert "weather" not in out and not any(r["id"].startswith("2.3") for r in out["results"])
 
@@ -213,7 +221,7 @@ def test_user_criteria_file_with_maximum_and_weather(tmp_path):
     assert cs.arms == {"crowd"}
     bad = tmp_path / "bad.toml"
     bad.write_text('[[criterion]]\nkind = "gm"\nminimum = 0.1\nmaximum = 2.0\n')
-    with pytest.raises(Exception, match="one of them"):
+    with pytest.raises(InputError, match="give minimum or maximum, not both"):
         read_criteria(str(bad))
 
 

@@ -18,7 +18,7 @@ from ..errors import InputError
 from ..frames import FRESH_WATER, SEA_WATER
 from ..tolerances import ANGLE_SLACK
 from ..loading import Opening
-from ..output import emit
+from ..output import figure_format, write_atomic
 from ..progress import Progress
 from ..renderers import render
 from ..vessel import FloatingHull, load_hull
@@ -96,16 +96,65 @@ def parse_opening(spec: str) -> Opening:
 # ---------------------------------------------------------------------------- shared options
 
 
+#: The mesh options and the values they take when not given (None in the parsed arguments means not given).
+MESH_DEFAULTS = {"units": "m", "forward": "+x", "up": "+z", "offset": "0,0,0", "flip_inside_out": False,
+                 "merge_overlaps": False, "close_holes": False}
+
+
 def mesh_args(p: argparse.ArgumentParser) -> None:
     g = p.add_argument_group("mesh input")
-    g.add_argument("--units", default="m", help="length unit of the mesh file: m, mm, cm, ft, in (default m)")
-    g.add_argument("--forward", default="+x", help="file axis pointing forward, e.g. +x, -y (default +x)")
-    g.add_argument("--up", default="+z", help="file axis pointing up, e.g. +z, +y for Y-up exports (default +z)")
-    g.add_argument("--offset", default="0,0,0", help="X,Y,Z added after scaling and axes [m]")
+    g.add_argument("--units", help="length unit of the mesh file: m, mm, cm, ft, in (default m)")
+    g.add_argument("--forward", help="file axis pointing forward, e.g. +x, -y (default +x)")
+    g.add_argument("--up", help="file axis pointing up, e.g. +z, +y for Y-up exports (default +z)")
+    g.add_argument("--offset", help="X,Y,Z added after scaling and axes [m] (default 0,0,0)")
     g.add_argument("--flip-inside-out", action="store_true", help="flip bodies found inside out (explicit repair)")
     g.add_argument("--merge-overlaps", action="store_true", help="union overlapping bodies (explicit repair)")
     g.add_argument("--close-holes", action="store_true",
                    help="fill one-triangle and quad holes (explicit repair; the change is reported)")
+
+
+def option(name: str) -> str:
+    """The command-line spelling of an argument's dest: ``flip_inside_out`` -> ``--flip-inside-out``."""
+    return "--" + name.replace("_", "-")
+
+
+def given(args: argparse.Namespace, names: Sequence[str]) -> list[str]:
+    """The options among ``names`` (dests) that the user gave, spelt as on the command line."""
+    out = []
+    for n in names:
+        v = getattr(args, n, None)
+        if v is not None and v is not False and v != []:
+            out.append(option(n))
+    return out
+
+
+def refuse(args: argparse.Namespace, names: Sequence[str], why: str) -> None:
+    """An InputError when any option among ``names`` was given: ``'--a, --b: <why>'``."""
+    opts = given(args, names)
+    if opts:
+        raise InputError(f"{', '.join(opts)}: {why}")
+
+
+def mesh_option(args: argparse.Namespace, name: str) -> object:
+    v = getattr(args, name, None)
+    return MESH_DEFAULTS[name] if v is None else v
+
+
+def check_finite(args: argparse.Namespace, names: Sequence[str]) -> None:
+    """Number options among ``names`` must be finite (argparse lets ``nan`` and ``inf`` through)."""
+    for n in names:
+        v = getattr(args, n, None)
+        if v is not None and not math.isfinite(v):
+            raise InputError(f"{option(n)} {v!r} is not a finite number")
+
+
+def check_figure(path: str | None, what: str = "--plot") -> None:
+    """A figure file's suffix checked before any computing (PNG, SVG or PDF)."""
+    if path:
+        try:
+            figure_format(path)
+        except InputError as exc:
+            raise InputError(f"{what} {exc}") from None
 
 
 def out_args(p: argparse.ArgumentParser, formats: Sequence[str] = ("text", "csv", "json")) -> None:
@@ -125,7 +174,7 @@ def source_args(p: argparse.ArgumentParser) -> None:
     g = p.add_argument_group("quick check without a case file")
     g.add_argument("--displacement", type=float, help="displacement [t]")
     g.add_argument("--cog", help="centre of gravity X,Y,Z [m], hull frame (Z is KG)")
-    g.add_argument("--fsm", type=float, default=0.0, help="free-surface moment [t·m] (raises G by FSM/Δ)")
+    g.add_argument("--fsm", type=float, help="free-surface moment [t·m] (raises G by FSM/Δ; default 0)")
     g.add_argument("--opening", action="append", default=[], metavar="NAME=X,Y,Z",
                    help="an opening for the downflooding angle (repeatable)")
     p.add_argument("--submerged-depth", type=float, metavar="M",
@@ -140,6 +189,8 @@ def source_args(p: argparse.ArgumentParser) -> None:
 
 def density(args: argparse.Namespace, default: float | None = None) -> float:
     """Water density [t/m³] from --density or --water, else ``default`` (sea water when None)."""
+    refuse_both_waters(args)
+    check_finite(args, ("density",))
     if getattr(args, "density", None) is not None:
         return float(args.density)
     w = getattr(args, "water", None)
@@ -150,6 +201,11 @@ def density(args: argparse.Namespace, default: float | None = None) -> float:
     return SEA_WATER if default is None else default
 
 
+def refuse_both_waters(args: argparse.Namespace) -> None:
+    if getattr(args, "density", None) is not None and getattr(args, "water", None) is not None:
+        raise InputError(f"--water {args.water} and --density {args.density:g}: give one of them, not both")
+
+
 def density_override(args: argparse.Namespace) -> float | None:
     """The density the user asked for, or None to keep a case file's."""
     if getattr(args, "density", None) is None and getattr(args, "water", None) is None:
@@ -158,10 +214,11 @@ def density_override(args: argparse.Namespace) -> float | None:
 
 
 def load_mesh(args: argparse.Namespace, path: str | None = None) -> FloatingHull:
-    return load_hull(path or args.mesh, units=args.units, forward=args.forward, up=args.up,
-                     offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
-                     merge_overlaps=args.merge_overlaps, close_holes=args.close_holes,
-                     x_aft=getattr(args, "x_aft", None),
+    offset = mesh_option(args, "offset")
+    return load_hull(path or args.mesh, units=mesh_option(args, "units"), forward=mesh_option(args, "forward"),
+                     up=mesh_option(args, "up"), offset=parse_vec(str(offset), "--offset"),
+                     flip_inside_out=bool(args.flip_inside_out), merge_overlaps=bool(args.merge_overlaps),
+                     close_holes=bool(getattr(args, "close_holes", False)), x_aft=getattr(args, "x_aft", None),
                      x_fore=getattr(args, "x_fore", None))
 
 
@@ -169,28 +226,42 @@ def is_case(path: str) -> bool:
     return path.lower().endswith(".toml")
 
 
-def load_source(args: argparse.Namespace) -> CaseInput:
-    """The hull and condition from a case file, or from a mesh with --displacement and --cog."""
-    inp = _load_source(args)
+CASE_SETS = ("the case file's [hull] table sets the mesh options (units, forward, up, offset, flip_inside_out, "
+             "merge_overlaps, close_holes); give them there")
+
+
+def refuse_mesh_options(args: argparse.Namespace) -> None:
+    """With a case file, the mesh options are the case file's: refuse them on the command line."""
+    refuse(args, list(MESH_DEFAULTS), f"not taken with a case file; {CASE_SETS}")
+
+
+def load_source(args: argparse.Namespace, *, openings: bool = True) -> CaseInput:
+    """The hull and condition from a case file, or from a mesh with --displacement and --cog.
+
+    ``openings``: whether the command uses openings (else --opening is refused).
+    """
+    inp = _load_source(args, openings)
     if getattr(args, "submerged_depth", None) is not None:
         inp = dataclasses.replace(inp, submerged_depth=args.submerged_depth)
     return inp
 
 
-def _load_source(args: argparse.Namespace) -> CaseInput:
+def _load_source(args: argparse.Namespace, openings: bool) -> CaseInput:
+    check_finite(args, ("displacement", "fsm"))
+    if not openings:
+        refuse(args, ["opening"], "this command does not use openings")
     if is_case(args.source):
-        if args.displacement is not None or args.cog:
-            raise InputError("give either a case file or --displacement/--cog with a mesh, not both")
-        if getattr(args, "x_aft", None) is not None or getattr(args, "x_fore", None) is not None:
-            raise InputError("--x-aft/--x-fore go with a mesh; a case file gives x_aft/x_fore in its [hull]")
-        if args.close_holes:
-            raise InputError("--close-holes goes with a mesh; a case file gives close_holes = true in its [hull]")
+        refuse(args, ["displacement", "cog", "fsm", "opening"],
+               f"not taken with a case file ({args.source} gives the load and openings)")
+        refuse_mesh_options(args)
+        refuse(args, ["x_aft", "x_fore"], f"not taken with a case file; {args.source} gives x_aft/x_fore in its [hull]")
         return from_case(args.source, args.condition, density=density_override(args))
+    refuse(args, ["condition"], f"{args.source} is a mesh, not a case file with conditions")
     if args.displacement is None or not args.cog:
         raise InputError(f"{args.source}: a mesh needs --displacement T and --cog X,Y,Z (or use a case file)")
     hull = load_mesh(args, args.source)
     ops = [parse_opening(s) for s in args.opening]
-    return from_mesh(hull, args.source, args.displacement, parse_vec(args.cog, "--cog"), fsm=args.fsm,
+    return from_mesh(hull, args.source, args.displacement, parse_vec(args.cog, "--cog"), fsm=args.fsm or 0.0,
                      openings=ops, density=density(args))
 
 
@@ -199,8 +270,7 @@ def load_hull_source(args: argparse.Namespace) -> tuple[FloatingHull, float]:
     if is_case(args.source):
         from ..loading import read_case
 
-        if args.close_holes:
-            raise InputError("--close-holes goes with a mesh; a case file gives close_holes = true in its [hull]")
+        refuse_mesh_options(args)
         case = read_case(args.source)
         return case.load_hull(), density(args, case.density)
     return load_mesh(args, args.source), density(args)
@@ -215,8 +285,13 @@ def progress(args: argparse.Namespace, total: int, label: str) -> Progress:
 
 
 def write(args: argparse.Namespace, text: str) -> None:
-    """Text to --out (atomically) or standard output."""
-    emit(getattr(args, "out", None), text)
+    """Text to --out (atomically, said on standard error) or standard output."""
+    path = getattr(args, "out", None)
+    if path:
+        write_atomic(path, text)
+        print(f"wrote {path}", file=sys.stderr)
+    else:
+        sys.stdout.write(text)
 
 
 def output(args: argparse.Namespace, doc: Document, plot: str | None = None) -> None:

@@ -8,37 +8,23 @@ from __future__ import annotations
 import argparse
 
 from .. import limits_analysis
-from ..criteria import read_criteria
 from ..errors import InputError
 from ..loading import read_case
-from .common import density, is_case, load_mesh, mesh_args, out_args, output, parse_range, water_args
-
-
-def criteria_name(args: argparse.Namespace, spec: object) -> str:
-    """--set, else the case's [criteria] set (a path relative to the case file), else imo2008."""
-    if args.set is not None:
-        return args.set
-    ref = getattr(getattr(spec, "criteria", None), "set", None)
-    if ref is None:
-        return "imo2008"
-    return ref if not ref.endswith(".toml") else spec.resolve(ref)  # type: ignore[attr-defined]
+from .common import (check_figure, density, is_case, load_mesh, mesh_args, out_args, output, parse_range,
+                     refuse_mesh_options, water_args)
+from .stability import criteria_set
 
 
 def cmd_kg_limits(args: argparse.Namespace) -> int:
     spec, openings = None, ()
+    check_figure(args.plot)
     if is_case(args.source):
-        given = [flag for flag, v, d in (("--units", args.units, "m"), ("--forward", args.forward, "+x"),
-                                         ("--up", args.up, "+z"), ("--offset", args.offset, "0,0,0"),
-                                         ("--flip-inside-out", args.flip_inside_out, False),
-                                         ("--merge-overlaps", args.merge_overlaps, False)) if v != d]
-        if given:
-            raise InputError(f"{args.source}: {given[0]} is not used with a case file (its [hull] table sets "
-                             "the mesh options)")
+        refuse_mesh_options(args)
         case = read_case(args.source)
         hull, rho, spec, openings = case.load_hull(), density(args, case.density), case.spec, case.openings
     else:
         hull, rho = load_mesh(args, args.source), density(args)
-    cset = read_criteria(criteria_name(args, spec))
+    cset = criteria_set(args)
     ds = parse_range(args.displacements, "--displacements")
     rng = None
     if args.kg_range is not None:

@@ -6,7 +6,8 @@ import sys
 
 from ..analysis import check_analysis, drafts_for_displacements, table_analysis
 from ..errors import InputError
-from .common import density, load_mesh, mesh_args, out_args, output, parse_range, parse_vec, water_args
+from .common import (check_figure, check_finite, density, load_mesh, mesh_args, mesh_option, out_args, output,
+                     parse_range, parse_vec, water_args)
 
 
 # ---------------------------------------------------------------------------- check
@@ -15,9 +16,10 @@ from .common import density, load_mesh, mesh_args, out_args, output, parse_range
 def cmd_check(args: argparse.Namespace) -> int:
     from ..mesh import check_mesh
 
-    md, rep = check_mesh(args.mesh, units=args.units, forward=args.forward, up=args.up,
-                         offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
-                         merge_overlaps=args.merge_overlaps, close_holes=args.close_holes)
+    md, rep = check_mesh(args.mesh, units=mesh_option(args, "units"), forward=mesh_option(args, "forward"),
+                         up=mesh_option(args, "up"), offset=parse_vec(str(mesh_option(args, "offset")), "--offset"),
+                         flip_inside_out=args.flip_inside_out, merge_overlaps=args.merge_overlaps,
+                         close_holes=args.close_holes)
     output(args, check_analysis(rep))
     if not rep.usable:
         print(f"meshhydro: {rep.problems[0]}", file=sys.stderr)
@@ -31,8 +33,10 @@ def cmd_check(args: argparse.Namespace) -> int:
 def cmd_table(args: argparse.Namespace) -> int:
     if (args.drafts is None) == (args.displacements is None):
         raise InputError("table needs exactly one of --drafts and --displacements")
-    hull = load_mesh(args)
+    check_finite(args, ("heel", "trim"))
+    check_figure(args.plot)
     rho = density(args)
+    hull = load_mesh(args)
     if args.drafts is not None:
         drafts = parse_range(args.drafts, "--drafts")
     else:
@@ -60,5 +64,5 @@ def register(sub: argparse._SubParsersAction) -> None:
     water_args(t)
     mesh_args(t)
     out_args(t)
-    t.add_argument("--plot", help="also draw the hydrostatic curves to this PNG")
+    t.add_argument("--plot", help="also draw the hydrostatic curves to this file (.png, .svg or .pdf)")
     t.set_defaults(func=cmd_table)

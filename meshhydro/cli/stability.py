@@ -9,8 +9,11 @@ import argparse
 
 from .. import analysis
 from ..criteria import read_criteria
-from .limits import criteria_name
+from ..errors import InputError
 from .common import (
+    check_figure,
+    check_finite,
+    is_case,
     mesh_args,
     load_hull_source,
     load_source,
@@ -32,14 +35,15 @@ def _heels(args: argparse.Namespace):
 
 
 def cmd_float(args: argparse.Namespace) -> int:
-    _, doc = analysis.float_analysis(load_source(args))
+    _, doc = analysis.float_analysis(load_source(args, openings=False))
     output(args, doc)
     return 0
 
 
 def cmd_righting(args: argparse.Namespace) -> int:
-    inp = load_source(args)
+    check_figure(args.plot)
     hs = _heels(args)
+    inp = load_source(args)
     bar = progress(args, analysis.curve_count(hs, inp, args.direction), "righting curve")
     _, doc = analysis.righting_analysis(inp, hs, direction=args.direction, free_trim=not args.fixed_trim,
                                         progress=bar)
@@ -49,9 +53,11 @@ def cmd_righting(args: argparse.Namespace) -> int:
 
 
 def cmd_cross(args: argparse.Namespace) -> int:
-    hull, rho = load_hull_source(args)
+    check_figure(args.plot)
+    check_finite(args, ("lcg",))
     ds = parse_range(args.displacements, "--displacements")
     hs = parse_range(args.heels, "--heels")
+    hull, rho = load_hull_source(args)
     bar = progress(args, len(ds) * len(hs), "cross curves")
     _, doc = analysis.cross_analysis(hull, ds, hs, density=rho, lcg=args.lcg, progress=bar)
     bar.close()
@@ -59,10 +65,28 @@ def cmd_cross(args: argparse.Namespace) -> int:
     return 0
 
 
+def criteria_set(args: argparse.Namespace):
+    """The criteria set: --set, or the case file's ``[criteria] set`` (a path relative to the case file), or
+    imo2008; --set and a different set in the case file are refused."""
+    ref = None
+    if is_case(args.source):
+        from ..loading import read_case
+
+        spec = read_case(args.source).spec
+        if spec is not None and spec.criteria is not None and spec.criteria.set:
+            ref = spec.criteria.set
+            ref = spec.resolve(ref) if ref.endswith(".toml") else ref
+    if args.set and ref and args.set != ref:
+        raise InputError(f"--set {args.set}: {args.source} names the criteria set {ref} in [criteria]; "
+                         f"give one of them")
+    return read_criteria(args.set or ref or "imo2008")
+
+
 def cmd_criteria(args: argparse.Namespace) -> int:
-    inp = load_source(args)
-    cset = read_criteria(criteria_name(args, inp.spec))
+    check_figure(args.plot)
+    cset = criteria_set(args)
     hs = _heels(args)
+    inp = load_source(args)
     bar = progress(args, analysis.curve_count(hs, inp, args.direction), "righting curve")
     rep, doc = analysis.criteria_analysis(inp, cset, hs, direction=args.direction, free_trim=not args.fixed_trim,
                                           progress=bar)
@@ -76,7 +100,7 @@ def _curve_opts(p: argparse.ArgumentParser) -> None:
     p.add_argument("--direction", choices=("auto", "both", "starboard", "port"), default="auto",
                    help="heel side(s); auto = both unless hull and load are port-starboard symmetric")
     p.add_argument("--fixed-trim", action="store_true", help="keep the upright trim instead of free trim")
-    p.add_argument("--plot", help="draw the GZ curve to this PNG")
+    p.add_argument("--plot", help="draw the GZ curve to this file (.png, .svg or .pdf)")
     p.add_argument("--quiet", action="store_true", help="no progress bar")
 
 
@@ -99,7 +123,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     c.add_argument("--displacements", required=True, help="START:STOP:STEP [t] or a list")
     c.add_argument("--heels", default="0:90:10", help="heels [deg] (default 0:90:10)")
     c.add_argument("--lcg", type=float, help="fixed LCG [m] instead of level upright flotation")
-    c.add_argument("--plot", help="draw the cross curves to this PNG")
+    c.add_argument("--plot", help="draw the cross curves to this file (.png, .svg or .pdf)")
     c.add_argument("--quiet", action="store_true", help="no progress bar")
     water_args(c)
     mesh_args(c)

@@ -8,7 +8,7 @@ from typing import Any
 
 from ..analysis import check_angles
 from ..errors import InputError
-from .common import load_source, parse_range, parse_size, progress, source_args
+from .common import check_figure, load_source, parse_range, parse_size, progress, refuse, source_args
 
 
 def cmd_sweep(args: argparse.Namespace) -> int:
@@ -16,7 +16,9 @@ def cmd_sweep(args: argparse.Namespace) -> int:
 
     size = parse_size(args.size)
     heels = check_angles(parse_range(args.heels, "--heels"), -180.0, 180.0, what="--heels")
-    src = load_source(args)
+    if args.view == "section":
+        refuse(args, ["camera", "gif", "sheet"], "these shape the 3D frames; --view section draws none")
+    src = load_source(args, openings=False)
     c = src.condition
     bar = progress(args, len(heels), "solving")
     tr = heel_trace(src.hull, c.displacement, c.cog, heels, density=src.density, fsm=c.fsm, label=src.label,
@@ -27,7 +29,7 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     bar = progress(args, max(n_frames, 1), "rendering")
     timings: dict[str, float] = {}
     written = write_sweep(src.hull, tr, args.out, view=args.view, size=size, sheet=args.sheet, gif=args.gif,
-                          camera=args.camera, progress=bar, timings=timings)
+                          camera=args.camera or "astern", progress=bar, timings=timings)
     bar.close()
     frames = sum(1 for w in written if w.startswith("frames"))
     others = [w for w in written if not w.startswith("frames")]
@@ -59,6 +61,7 @@ def cmd_compare(args: argparse.Namespace) -> int:
 
     if len(args.sources) < 2:
         raise InputError("compare needs two or more case files (CASE.toml or CASE.toml@condition)")
+    check_figure(args.out, "--out")
     heels = parse_range(args.heels, "--heels")
     size = parse_size(args.size)
     hulls, traces, labels = [], [], []
@@ -97,7 +100,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     s.add_argument("--heels", default="0:90:5", help="START:STOP:STEP [deg] (default 0:90:5); negative start as --heels=-30:30:5")
     s.add_argument("--out", required=True, help="output folder (replaced whole on a re-run)")
     s.add_argument("--view", choices=("3d", "section", "both"), default="both")
-    s.add_argument("--camera", choices=("astern", "oblique"), default="astern")
+    s.add_argument("--camera", choices=("astern", "oblique"), help="viewpoint of the 3D frames (default astern)")
     s.add_argument("--gif", action="store_true", help="also write an animated GIF")
     s.add_argument("--sheet", action="store_true", help="also write a contact sheet")
     s.add_argument("--size", default="960x720", help="image size WIDTHxHEIGHT in pixels (default 960x720)")
@@ -107,7 +110,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     c = sub.add_parser("compare", help="overlay B traces and metacentre loci of several cases in one figure")
     c.add_argument("sources", nargs="+", help="CASE.toml or CASE.toml@condition, two or more")
     c.add_argument("--heels", default="0:60:5", help="START:STOP:STEP [deg] (default 0:60:5)")
-    c.add_argument("--out", required=True, help="PNG to write")
+    c.add_argument("--out", required=True, help="figure to write (.png, .svg or .pdf)")
     c.add_argument("--trace", help="also write the traces as JSON")
     c.add_argument("--size", default="960x720")
     c.set_defaults(func=cmd_compare)
