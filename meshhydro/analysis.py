@@ -207,6 +207,11 @@ def _derived_section(curve: RightingCurve, sides: tuple[int, ...]) -> Section:
     return sec
 
 
+def derived_section(curve: RightingCurve, sides: tuple[int, ...]) -> Section:
+    """The derived values of a curve on each side (GM, max GZ, angles, areas) as a section."""
+    return _derived_section(curve, sides)
+
+
 def righting_analysis(inp: CaseInput, heels: np.ndarray, *, direction: str = "auto", free_trim: bool = True,
                       progress: Progress = None) -> tuple[RightingCurve, Document]:
     """GZ curve with derived values, and its report (figure ``gz``)."""

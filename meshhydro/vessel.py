@@ -37,7 +37,8 @@ class FloatingHull(Hull):
 
 def load_hull(source: Any, units: str = "m", *, forward: str = "+x", up: str = "+z",
               offset: Sequence[float] = (0.0, 0.0, 0.0), flip_inside_out: bool = False,
-              merge_overlaps: bool = False, name: str | None = None, x_ref: float | None = None) -> FloatingHull:
+              merge_overlaps: bool = False, name: str | None = None, x_ref: float | None = None,
+              progress: Any = None) -> FloatingHull:
     """Load and check a hull mesh; raise if it cannot be used.
 
     Parameters
@@ -55,13 +56,15 @@ def load_hull(source: Any, units: str = "m", *, forward: str = "+x", up: str = "
     name : str, optional
     x_ref : float, optional [m]
         x of the draft reference point; default the middle of the hull's length.
+    progress : callable(stage, done, total), optional
+        Called as reading and checking advance (see :func:`meshhydro.mesh.check_mesh`).
 
     Raises
     ------
     InputError, InvalidMeshError
     """
     md, rep = check_mesh(source, units=units, forward=forward, up=up, offset=tuple(offset),
-                         flip_inside_out=flip_inside_out, merge_overlaps=merge_overlaps)
+                         flip_inside_out=flip_inside_out, merge_overlaps=merge_overlaps, progress=progress)
     if not rep.usable:
         n = len(rep.problems) - 1
         more = f" (and {n} more problems; see the mesh health report)" if n else ""

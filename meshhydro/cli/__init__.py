@@ -1,6 +1,6 @@
 """Command-line interface: parse, call the analyses, render their documents, map errors to exit codes.
 
-One module per topic (``mesh``, ``stability``, ``sweep``, ``sections``), each with a ``register``,
+One module per topic (``mesh``, ``stability``, ``sweep``, ``sections``, ``report``), each with a ``register``,
 and ``common`` for shared options, loading and output; this module builds the parser and runs ``main``.
 
 Exit codes: 0 success; 1 a criteria check failed (``criteria`` only); 2 bad input;
@@ -18,6 +18,7 @@ from .. import __version__
 from ..errors import MeshHydroError
 from ..criteria import CAUTION
 from . import mesh as cli_mesh
+from . import report as cli_report
 from . import sections as cli_sections
 from . import stability as cli_stability
 from . import sweep as cli_sweep
@@ -38,6 +39,7 @@ def build_parser() -> argparse.ArgumentParser:
     cli_stability.register(sub)
     cli_sweep.register(sub)
     cli_sections.register(sub)
+    cli_report.register(sub)
     return p
 
 

@@ -12,7 +12,7 @@ from typing import Sequence
 import numpy as np
 
 from ..analysis import CaseInput, from_case, from_mesh
-from ..document import Document
+from ..document import Document, Figure
 from ..errors import InputError
 from ..frames import FRESH_WATER, SEA_WATER
 from ..tolerances import ANGLE_SLACK
@@ -192,12 +192,21 @@ def write(args: argparse.Namespace, text: str) -> None:
     emit(getattr(args, "out", None), text)
 
 
-def output(args: argparse.Namespace, doc: Document, plot: str | None = None) -> None:
-    """Draw the document's first figure to ``plot`` when asked, then write it in --format."""
-    if plot:
-        from ..plots import draw
+def output(args: argparse.Namespace, doc: Document, plot: str | None = None, figure: Figure | None = None) -> None:
+    """Draw ``figure`` (default the document's first) to ``plot`` when asked, then write it in --format.
 
-        figs = [f for s in doc.sections for f in s.figures]
-        draw(figs[0], plot)
+    Figures the report-grade views know (GZ, hydrostatic curves, ...) are drawn by
+    :mod:`meshhydro.figures`; the cross curves by :mod:`meshhydro.plots`."""
+    if plot:
+        from .. import figures
+        from ..figure_data import as_view
+
+        fig = figure or as_view([f for s in doc.sections for f in s.figures][0], doc.vessel)
+        if fig.view in figures.VIEWS:
+            figures.save(fig, plot)
+        else:
+            from ..plots import draw
+
+            draw(fig, plot)
         print(f"wrote {plot}", file=sys.stderr)
     write(args, render(doc, getattr(args, "format", "text")))

@@ -65,7 +65,16 @@ def cmd_criteria(args: argparse.Namespace) -> int:
     rep, doc = analysis.criteria_analysis(inp, cset, hs, direction=args.direction, free_trim=not args.fixed_trim,
                                           progress=bar)
     bar.close()
-    output(args, doc, args.plot)
+    fig = None
+    if args.plot:
+        from ..document import Figure
+        from ..figure_data import gz_data
+
+        f = doc.section("results").figures[0]
+        sides = analysis.choose_sides(inp.hull, inp.condition, args.direction)
+        fig = Figure(f.key, f.title, "gz_curve", gz_data(f.data, sides, inp.hull.name, cset=cset, report=rep,
+                                                        title=f.title))
+    output(args, doc, args.plot, fig)
     return 0 if rep.passed else 1
 
 
@@ -74,7 +83,7 @@ def _curve_opts(p: argparse.ArgumentParser) -> None:
     p.add_argument("--direction", choices=("auto", "both", "starboard", "port"), default="auto",
                    help="heel side(s); auto = both unless hull and load are port-starboard symmetric")
     p.add_argument("--fixed-trim", action="store_true", help="keep the upright trim instead of free trim")
-    p.add_argument("--plot", help="draw the GZ curve to this PNG")
+    p.add_argument("--plot", help="draw the GZ curve to this file (.png, .svg or .pdf)")
     p.add_argument("--quiet", action="store_true", help="no progress bar")
 
 
