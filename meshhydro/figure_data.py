@@ -126,7 +126,33 @@ def largest_section_outline(hull: Any, n: int = 41) -> list[np.ndarray]:
     xs = np.linspace(hull.bounds[0][0], hull.bounds[1][0], n + 2)[1:-1]
     areas = sectional_areas(hull, xs, hull.bounds[1][2] + hull.size)  # whole sections: water above all
     seg = section_segments(hull, float(xs[int(np.argmax(areas))]))
-    return [s[:, 1:] for s in seg]
+    return chain_segments(seg[:, :, 1:])
+
+
+def chain_segments(seg: np.ndarray) -> list[np.ndarray]:
+    """Join segments (k, 2, d) that share end points exactly into polylines (m, d), in order of first use.
+
+    A segment whose start is the end of the polyline being built extends it; otherwise a new polyline
+    starts. Cut outlines share end points bit for bit, so closed loops come out as closed polylines.
+    """
+    starts: dict[bytes, list[int]] = {}
+    for i, s in enumerate(seg):
+        starts.setdefault(s[0].tobytes(), []).append(i)
+    used = np.zeros(len(seg), dtype=bool)
+    lines = []
+    for i in range(len(seg)):
+        if used[i]:
+            continue
+        used[i] = True
+        pts = [seg[i][0], seg[i][1]]
+        while True:
+            nxt = [j for j in starts.get(pts[-1].tobytes(), []) if not used[j]]
+            if not nxt:
+                break
+            used[nxt[0]] = True
+            pts.append(seg[nxt[0]][1])
+        lines.append(np.array(pts))
+    return lines
 
 
 def _vessel(name: str) -> str:

@@ -149,3 +149,18 @@ def test_report_bad_options(tmp_path, capsys, monkeypatch, argv, message):
 def test_report_needs_a_case_file(tmp_path, capsys):
     code = _run("report", BARGE, "--out", str(tmp_path / "r.html"))
     assert code == 2 and "report takes a case file" in capsys.readouterr().err
+
+
+def test_outline_segments_chain_into_closed_loops():
+    from meshhydro.figure_data import chain_segments, largest_section_outline
+
+    # a unit square's edges, out of order: one closed polyline of 5 points (common practice: a loop
+    # repeats its first point at the end)
+    sq = np.array([[[1, 0], [1, 1]], [[0, 0], [1, 0]], [[0, 1], [0, 0]], [[1, 1], [0, 1]]], dtype=float)
+    lines = chain_segments(sq)
+    assert len(lines) == 1 and len(lines[0]) == 5 and np.array_equal(lines[0][0], lines[0][-1])
+    # the catamaran's widest section is two separate closed loops, one per demi-hull
+    cat = meshhydro.load_hull(os.path.join(ROOT, "meshes", "twinfin_cat.stl"))
+    loops = largest_section_outline(cat)
+    assert len(loops) == 2 and all(np.array_equal(p[0], p[-1]) for p in loops)
+    assert sorted(np.sign([p[:, 0].mean() for p in loops])) == [-1.0, 1.0]
