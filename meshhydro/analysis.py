@@ -49,12 +49,14 @@ class CaseInput:
     label: str
 
 
-def from_case(path: str, condition_name: str | None = None, *, density: float | None = None) -> CaseInput:
-    """A case file's hull and condition (the first unless named); ``density`` overrides the file's [t/m³]."""
+def from_case(path: str, condition_name: str | None = None, *, density: float | None = None,
+              progress: Callable[[str, int, int], object] | None = None) -> CaseInput:
+    """A case file's hull and condition (the first unless named); ``density`` overrides the file's [t/m³];
+    ``progress(stage, done, total)`` follows the mesh's reading and checking."""
     case = read_case(path)
     cond = case.condition(condition_name)
     rho = case.density if density is None else float(density)
-    return CaseInput(case.load_hull(), cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}")
+    return CaseInput(case.load_hull(progress=progress), cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}")
 
 
 def from_mesh(hull: FloatingHull, source: str, displacement: float, cog: Sequence[float], *, fsm: float = 0.0,

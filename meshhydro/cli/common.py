@@ -146,9 +146,11 @@ def density_override(args: argparse.Namespace) -> float | None:
 
 
 def load_mesh(args: argparse.Namespace, path: str | None = None) -> FloatingHull:
-    return load_hull(path or args.mesh, units=args.units, forward=args.forward, up=args.up,
-                     offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
-                     merge_overlaps=args.merge_overlaps)
+    offset = parse_vec(args.offset, "--offset")
+    with progress(args, 1, "mesh") as bar:
+        return load_hull(path or args.mesh, units=args.units, forward=args.forward, up=args.up, offset=offset,
+                         flip_inside_out=args.flip_inside_out, merge_overlaps=args.merge_overlaps,
+                         progress=bar.stage)
 
 
 def is_case(path: str) -> bool:
@@ -160,7 +162,8 @@ def load_source(args: argparse.Namespace) -> CaseInput:
     if is_case(args.source):
         if args.displacement is not None or args.cog:
             raise InputError("give either a case file or --displacement/--cog with a mesh, not both")
-        return from_case(args.source, args.condition, density=density_override(args))
+        with progress(args, 1, "mesh") as bar:
+            return from_case(args.source, args.condition, density=density_override(args), progress=bar.stage)
     if args.displacement is None or not args.cog:
         raise InputError(f"{args.source}: a mesh needs --displacement T and --cog X,Y,Z (or use a case file)")
     hull = load_mesh(args, args.source)
@@ -175,7 +178,8 @@ def load_hull_source(args: argparse.Namespace) -> tuple[FloatingHull, float]:
         from ..loading import read_case
 
         case = read_case(args.source)
-        return case.load_hull(), density(args, case.density)
+        with progress(args, 1, "mesh") as bar:
+            return case.load_hull(progress=bar.stage), density(args, case.density)
     return load_mesh(args, args.source), density(args)
 
 
@@ -183,7 +187,7 @@ def load_hull_source(args: argparse.Namespace) -> tuple[FloatingHull, float]:
 
 
 def progress(args: argparse.Namespace, total: int, label: str) -> Progress:
-    """A progress bar on a terminal, none with --quiet."""
+    """A progress bar (tqdm) on a terminal, none with --quiet or when standard error is not a terminal."""
     return Progress(total, label, enabled=False if getattr(args, "quiet", False) else None)
 
 

@@ -5,7 +5,7 @@ import argparse
 import sys
 
 from ..analysis import check_analysis, table_analysis
-from .common import density, load_mesh, mesh_args, out_args, output, parse_range, parse_vec, water_args
+from .common import density, load_mesh, mesh_args, out_args, output, parse_range, parse_vec, progress, water_args
 
 
 # ---------------------------------------------------------------------------- check
@@ -14,9 +14,11 @@ from .common import density, load_mesh, mesh_args, out_args, output, parse_range
 def cmd_check(args: argparse.Namespace) -> int:
     from ..mesh import check_mesh
 
-    md, rep = check_mesh(args.mesh, units=args.units, forward=args.forward, up=args.up,
-                         offset=parse_vec(args.offset, "--offset"), flip_inside_out=args.flip_inside_out,
-                         merge_overlaps=args.merge_overlaps)
+    offset = parse_vec(args.offset, "--offset")
+    with progress(args, 1, "mesh") as bar:
+        md, rep = check_mesh(args.mesh, units=args.units, forward=args.forward, up=args.up, offset=offset,
+                             flip_inside_out=args.flip_inside_out, merge_overlaps=args.merge_overlaps,
+                             progress=bar.stage)
     output(args, check_analysis(rep))
     if not rep.usable:
         print(f"meshhydro: {rep.problems[0]}", file=sys.stderr)
