@@ -104,6 +104,8 @@ class Scene:
         self.lo, self.hi = allp.min(axis=0), allp.max(axis=0)
         self._add_water(pv, hull)
         self._camera_set = False
+        self.z_top, self.z_foot = np.inf, -np.inf
+        self._set_camera()
 
     def _add_water(self, pv: Any, hull: Hull) -> None:
         """The water, the same in every frame (earth frame, surface at z = 0)."""
@@ -144,6 +146,8 @@ class Scene:
             p.camera_position = [(f[0] - d, f[1], f[2]), f, (0.0, 0.0, 1.0)]  # level with the water
             p.enable_parallel_projection()
             p.camera.parallel_scale = S
+            self.z_top = zc + S * (1.0 - 2.0 * TOP_BAND)  # lowest z of the header band
+            self.z_foot = zc - S * (1.0 - 2.0 * FOOT_BAND)  # highest z of the legend band
         else:
             r = 0.5 * float(np.linalg.norm(ext))
             direction = np.array([-1.0, -0.9, 0.6])
@@ -204,10 +208,12 @@ class Scene:
         p.add_mesh(pv.Line(G, Z), color=COLOURS["lever"], line_width=6, name="lever", render=False)
         ra = self.r_axis
         top = max(G[2], B[2], 0.0) + 0.5 * ra
-        p.add_mesh(pv.Line(B - np.array([0, 0, 0.3 * ra]), np.array([B[0], B[1], top])), color=COLOURS["B"],
-                   line_width=1, name="vB", render=False)
-        p.add_mesh(pv.Line(G - np.array([0, 0, 0.5 * ra]), np.array([G[0], G[1], top])), color=COLOURS["G"],
-                   line_width=1, name="vG", render=False)
+        if self.camera == "astern" and self._camera_set:
+            top = min(top, self.z_top)  # the verticals stop below the header text
+        for q, below, name in ((B, 0.3, "vB"), (G, 0.5, "vG")):  # verticals through B and G, clear of the texts
+            low = np.array([q[0], q[1], max(q[2] - below * ra, self.z_foot)])
+            p.add_mesh(pv.Line(low, np.array([q[0], q[1], top])), color=COLOURS[name[1]], line_width=1, name=name,
+                       render=False)
         side, lever = side_words(float(t.heel[k]), float(t.gz[k]))
         heel = f"heel {abs(t.heel[k]):.1f}° {side}" if t.heel[k] != 0 else "upright"
         label = (f"{heel}   GZ {abs(t.gz[k]):.3f} m {lever}\n"
@@ -217,8 +223,6 @@ class Scene:
         p.add_text("G centre of gravity (black)   B centre of buoyancy (blue)   M metacentre (green)   "
                    "GZ lever (orange)\n" + CAMERA_NOTE[self.camera],
                    position="lower_left", font_size=max(6, fs - 2), color="#444444", name="legend", render=False)
-        if not self._camera_set:
-            self._set_camera()
         p.render()
         p.screenshot(path)
 
