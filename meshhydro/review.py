@@ -382,25 +382,29 @@ def floating_section(rv: Review, cr: ConditionRun) -> Section:
 
 
 def righting_section(rv: Review, cr: ConditionRun) -> Section:
-    """GZ curve with the criteria's limits and areas, derived values and the levers every 5°."""
+    """GZ curve with the criteria's limits and areas first, then the derived values and the levers
+    (every 5° on one side, every 10° on two, so the table stays within a page or two)."""
     c, curve = cr.inp.condition, cr.curve
     trim = "free" if curve.free_trim else "fixed"
     sec = Section("righting", "Righting levers")
     title = f"{rv.vessel}, {c.name}: GZ (Δ {c.displacement:.3f} t, KG fluid {c.kg_fluid:.3f} m, {trim} trim)"
     sec.figures.append(Figure("gz", title, "gz_curve", gz_data(curve, cr.sides, rv.vessel, cset=rv.cset,
                                                               report=cr.report, title=title),
-                              caption="shaded: the areas the criteria ask for; lines: their limits"))
+                              caption="both sides drawn righting-positive; shaded: the areas the criteria ask for; "
+                                      "lines: their limits"))
     derived = A.derived_section(curve, cr.sides)
     for sub in derived.sections:
         sub.title = sub.title.rstrip(":").capitalize()
         sec.sections.append(sub)
     sec.notes += derived.notes
-    rows = [r for r in curve.rows() if abs(r["heel"] / 5.0 - round(r["heel"] / 5.0)) < 1e-9]
+    step = 5.0 if len(cr.sides) == 1 else 10.0
+    rows = [r for r in curve.rows() if abs(r["heel"] / step - round(r["heel"] / step)) < 1e-9]
     keys = [("heel", "heel", "deg", 1), ("gz", "GZ", "m", 4), ("kn", "KN", "m", 4), ("draft", "draft", "m", 4),
             ("trim", "trim", "deg", 3), ("lcb", "LCB", "m", 4), ("tcb", "TCB", "m", 4), ("vcb", "VCB", "m", 4)]
     cols = [Column(k, lab, u, d) for k, lab, u, d in keys]
-    sec.tables.append(Table("levers", "Levers every 5° (GZ sign: + rights from a starboard heel)", cols,
-                            [{k: r[k] for k, *_ in keys} for r in rows]))
+    levers = Table("levers", f"Levers every {step:g}° (GZ sign: + rights from a starboard heel)", cols,
+                   [{k: r[k] for k, *_ in keys} for r in rows])
+    sec.sections.append(Section("levers", "Levers", tables=[levers]))
     return sec
 
 
