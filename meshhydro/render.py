@@ -40,14 +40,20 @@ CAMERA_NOTE = {"astern": "camera: astern, looking forward level with the water (
                "oblique": "camera: oblique, from aft on the starboard quarter, above the water (perspective)"}
 
 
+#: half a unit of the last digit of GZ in the frame header [m]
+GZ_SHOWN = 0.0005
+
+
 def side_words(heel: float, gz: float) -> tuple[str, str]:
     """('to starboard' | 'to port' | 'upright', 'righting' | 'heeling' | 'no lever') for a heel [deg]
-    (+ starboard down) and its GZ [m] (+ rights from a starboard heel)."""
+    (+ starboard down) and its GZ [m] (+ rights from a starboard heel); 'no lever' when |GZ| shows as
+    0.000 m."""
     side = "upright" if heel == 0 else ("to starboard" if heel > 0 else "to port")
-    lever = gz * (1 if heel >= 0 else -1)
-    if heel == 0 or gz == 0:
-        return side, "no lever" if gz == 0 else ("heels to starboard" if gz < 0 else "heels to port")
-    return side, "righting" if lever > 0 else "heeling"
+    if abs(gz) < GZ_SHOWN:  # shown as 0.000 m: no words that a round-off sign would decide
+        return side, "no lever"
+    if heel == 0:
+        return side, "heels to starboard" if gz < 0 else "heels to port"
+    return side, "righting" if gz * heel > 0 else "heeling"
 
 
 def _pv():

@@ -104,7 +104,8 @@ def test_a_builder_adds_a_section():
 @pytest.mark.parametrize("heel, gz, words", [
     (20.0, 0.3, ("to starboard", "righting")), (20.0, -0.1, ("to starboard", "heeling")),
     (-20.0, -0.3, ("to port", "righting")), (-20.0, 0.1, ("to port", "heeling")),
-    (0.0, 0.02, ("upright", "heels to port")), (0.0, 0.0, ("upright", "no lever")),
+    (0.0, 0.02, ("upright", "heels to port")), (0.0, -0.02, ("upright", "heels to starboard")),
+    (0.0, 0.0, ("upright", "no lever")), (0.0, 1e-17, ("upright", "no lever")), (30.0, -3e-4, ("to starboard", "no lever")),
 ])
 def test_frame_header_words(heel, gz, words):
     # README conventions: heel + = starboard down; GZ + rights the vessel from a positive heel
