@@ -74,10 +74,12 @@ class CaseInput:
         return check_clearance(self.submerged_depth)
 
 
-def from_case(path: str, condition_name: str | None = None, *, density: float | None = None) -> CaseInput:
-    """A case file's hull and condition (the first unless named); ``density`` overrides the file's [t/m³]."""
+def from_case(path: str, condition_name: str | None = None, *, density: float | None = None,
+              progress: Callable[[str, int, int], object] | None = None) -> CaseInput:
+    """A case file's hull and condition (the first unless named); ``density`` overrides the file's [t/m³];
+    ``progress(stage, done, total)`` follows the mesh's reading and checking."""
     case = read_case(path)
-    hull = case.load_hull()
+    hull = case.load_hull(progress=progress)
     cond = resolve_condition(case, hull, condition_name)
     rho = case.density if density is None else float(density)
     specs = [c for c in getattr(case.spec, "conditions", ()) if c.name == cond.name]
@@ -281,6 +283,11 @@ def _derived_section(curve: RightingCurve, sides: tuple[int, ...]) -> Section:
     if curve.submerged:
         sec.notes.append(f"note: fully submerged at every angle (B fixed, BM = 0, M on B): {SUBMERGED_NOTE}")
     return sec
+
+
+def derived_section(curve: RightingCurve, sides: tuple[int, ...]) -> Section:
+    """The derived values of a curve on each side (GM, max GZ, angles, areas) as a section."""
+    return _derived_section(curve, sides)
 
 
 def righting_analysis(inp: CaseInput, heels: np.ndarray, *, direction: str = "auto", free_trim: bool = True,

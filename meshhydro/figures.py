@@ -24,7 +24,7 @@ from .errors import InputError
 from .figures_plot import compare_figure, convergence_figure, hydrostatics_figure, section_figure
 from .figures_common import check_keys, new_figure, side_style
 from .figures_submergence import submergence_figure
-from .output import save_atomic
+from .output import figure_format, save_atomic
 
 #: One radian in degrees: the GM tangent reaches GM at this heel.
 RADIAN_DEG = 180.0 / math.pi
@@ -226,10 +226,7 @@ SUFFIXES = {".png": "png", ".svg": "svg", ".pdf": "pdf"}
 
 def save_figure(fig: Any, path: str, *, dpi: int = 150) -> None:
     """Write the figure whole (or not at all) as PNG, SVG or PDF chosen by the suffix of ``path``."""
-    ext = os.path.splitext(path)[1].lower()
-    if ext not in SUFFIXES:
-        raise InputError(f"{path}: figure files end in .png, .svg or .pdf")
-    fmt = SUFFIXES[ext]
+    fmt = figure_format(path, tuple(s.lstrip(".") for s in SUFFIXES))
     meta = {"Creator": None} if fmt in ("svg", "pdf") else {}
     save_atomic(path, lambda p: fig.savefig(p, format=fmt, dpi=dpi, bbox_inches="tight", pad_inches=0.08,
                                             metadata=meta))

@@ -212,12 +212,18 @@ def compare_figure(data: Mapping[str, Any]) -> Any:
     ax.set_title("righting levers", fontsize=10)
     if planes:
         a2 = axes[1]
+        # the window holds every B trace with room around it; a metacentre far above (a catamaran's BM of
+        # many metres) is cut at the frame instead of squashing the traces into a corner
+        bs = np.vstack([np.asarray(c["cob"], dtype=float)[:, 1:] for c in cases])
+        ext = max(float(np.ptp(bs[:, 0])), float(np.ptp(bs[:, 1])), 1e-3)
+        a2.set_xlim(float(bs[:, 0].min()) - ext, float(bs[:, 0].max()) + ext)
+        a2.set_ylim(float(bs[:, 1].min()) - 0.5 * ext, float(bs[:, 1].max()) + 1.5 * ext)
         a2.invert_xaxis()
-        a2.set_aspect("equal", adjustable="datalim")
+        a2.set_aspect("equal", adjustable="box")
         a2.set_xlabel("y [m]  (seen from astern: port on the left)")
         a2.set_ylabel("z above baseline [m]")
         a2.grid(True, alpha=0.3)
-        a2.set_title("B traces (thick) and M loci (thin)", fontsize=10)
+        a2.set_title("B traces (thick) and M loci (thin, cut at the frame)", fontsize=10)
     fig.suptitle(str(data["title"]), fontsize=11)
     fig.legend(*ax.get_legend_handles_labels(), loc="center left", bbox_to_anchor=(1.0, 0.5), fontsize=10,
                frameon=False)

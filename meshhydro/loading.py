@@ -234,12 +234,13 @@ class Case:
                 return c
         raise InputError(f"{self.path}: no condition named {name!r}; have {[c.name for c in self.conditions]}")
 
-    def load_hull(self) -> FloatingHull:
-        """Load and check the case's hull mesh with the case's own mesh options and repairs."""
+    def load_hull(self, progress: Any = None) -> FloatingHull:
+        """Load and check the case's hull mesh with the case's own mesh options and repairs
+        (``progress(stage, done, total)`` called as reading and checking advance)."""
         return load_hull(self.mesh, units=self.units, forward=self.forward, up=self.up, offset=self.offset,
                          flip_inside_out=self.flip_inside_out, merge_overlaps=self.merge_overlaps,
                          x_ref=self.x_ref, name=self.name, x_aft=self.x_aft, x_fore=self.x_fore,
-                         close_holes=self.close_holes)
+                         close_holes=self.close_holes, progress=progress)
 
 
 def _condition_from_spec(c: Any) -> Condition:

@@ -3,9 +3,13 @@
 The hull is drawn in an earth frame (x forward, y to port, z up, water surface at
 z = 0) so that it heels in front of a fixed camera, with the same camera, scale and
 lighting in every frame: a sequence reads as motion. The submerged part and the
-part above water have different colours, the water is a translucent sheet, the
-waterline is drawn on the hull, G, B and the pro-metacentre M are marked, and the
-righting lever is the horizontal segment from G to the vertical through B.
+part above water have different colours; seen from astern (looking along the hull,
+level with the water) the water is the region below the surface line at the
+waterline, seen obliquely it is a translucent sheet. The waterline is drawn on the
+hull; G, B and the pro-metacentre M are marked with letters as well as colours; the
+righting lever is the horizontal segment from G to the vertical through B. The
+header names the side, says whether GZ rights or heels, and the frame keeps the hull
+clear of the header; the camera is noted at the foot.
 """
 from __future__ import annotations
 
@@ -32,6 +36,27 @@ COLOURS = {
 def _draft_text(t: float) -> str:
     """Label text for a draft T [m] (undefined when the hull z axis lies in the waterplane)."""
     return f"draft {t:.3f} m" if np.isfinite(t) else "draft undefined (hull z in the waterplane)"
+#: shares of the frame height kept free of the hull for the header (top) and the legend (foot)
+TOP_BAND, FOOT_BAND = 0.12, 0.07
+CAMERA_NOTE = {"astern": "camera: astern, looking forward level with the water (parallel projection); "
+                         "starboard on the right",
+               "oblique": "camera: oblique, from aft on the starboard quarter, above the water (perspective)"}
+
+
+#: half a unit of the last digit of GZ in the frame header [m]
+GZ_SHOWN = 0.0005
+
+
+def side_words(heel: float, gz: float) -> tuple[str, str]:
+    """('to starboard' | 'to port' | 'upright', 'righting' | 'heeling' | 'no lever') for a heel [deg]
+    (+ starboard down) and its GZ [m] (+ rights from a starboard heel); 'no lever' when |GZ| shows as
+    0.000 m."""
+    side = "upright" if heel == 0 else ("to starboard" if heel > 0 else "to port")
+    if abs(gz) < GZ_SHOWN:  # shown as 0.000 m: no words that a round-off sign would decide
+        return side, "no lever"
+    if heel == 0:
+        return side, "heels to starboard" if gz < 0 else "heels to port"
+    return side, "righting" if gz * heel > 0 else "heeling"
 
 
 def _pv():
@@ -86,11 +111,28 @@ class Scene:
         boxes = [self._to_earth(k, sample) for k in range(len(trace.heel))]
         allp = np.concatenate(boxes)
         self.lo, self.hi = allp.min(axis=0), allp.max(axis=0)
-        # the water sheet is the same in every frame (earth frame, z = 0)
-        sheet = pv.Plane(center=(self.xc, 0.0, 0.0), direction=(0, 0, 1), i_size=1.1 * hull.length,
-                         j_size=4 * self.r_axis, i_resolution=1, j_resolution=1)
-        self.plotter.add_mesh(sheet, color=COLOURS["water"], opacity=0.38, name="water", render=False)
+        self._add_water(pv, hull)
         self._camera_set = False
+        self.z_top, self.z_foot = np.inf, -np.inf
+        self._set_camera()
+
+    def _add_water(self, pv: Any, hull: Hull) -> None:
+        """The water, the same in every frame (earth frame, surface at z = 0)."""
+        ra = self.r_axis
+        if self.camera == "astern":
+            # looking along x level with the water: the water is a face beyond the bow, below z = 0,
+            # and its surface a line at z = 0 in front of the hull, so the waterline reads as a surface
+            x_back = float(hull.bounds[1][0] - self.K[0]) + 0.05 * hull.length
+            body = pv.Plane(center=(x_back, 0.0, -2.0 * ra), direction=(1, 0, 0), i_size=4.0 * ra, j_size=12 * ra,
+                            i_resolution=1, j_resolution=1)
+            self.plotter.add_mesh(body, color=COLOURS["water"], opacity=0.45, name="water", render=False,
+                                  lighting=False)
+            line = pv.Line((self.x_front, -6 * ra, 0.0), (self.x_front, 6 * ra, 0.0))
+            self.plotter.add_mesh(line, color=COLOURS["waterline"], line_width=2, name="surface", render=False)
+        else:
+            sheet = pv.Plane(center=(self.xc, 0.0, 0.0), direction=(0, 0, 1), i_size=1.1 * hull.length,
+                             j_size=4 * ra, i_resolution=1, j_resolution=1)
+            self.plotter.add_mesh(sheet, color=COLOURS["water"], opacity=0.38, name="water", render=False)
 
     def _to_earth(self, k: int, pts: np.ndarray) -> np.ndarray:
         R = hull_to_earth(self.trace.heel[k], self.trace.trim[k])
@@ -104,16 +146,23 @@ class Scene:
         aspect = self.size[0] / self.size[1]
         if self.camera == "astern":
             d = 6 * max(float(ext.max()), 1e-9)
-            el = np.radians(4.0)  # a little above the water, so the sheet shows
-            f = (centre[0], centre[1], centre[2])
-            p.camera_position = [(f[0] - d * np.cos(el), f[1], f[2] + d * np.sin(el)), f, (0.0, 0.0, 1.0)]
+            # half-height S of the view: the hull's extent fits between the header band (top) and the
+            # legend band (foot), and across the width, at every angle of the sweep
+            free = 1.0 - TOP_BAND - FOOT_BAND
+            S = 1.04 * max(float(ext[2]) / (2 * free), float(ext[1]) / (2 * aspect), 1e-9)
+            zc = float(centre[2]) - S * (FOOT_BAND - TOP_BAND)
+            f = (float(centre[0]), float(centre[1]), zc)
+            p.camera_position = [(f[0] - d, f[1], f[2]), f, (0.0, 0.0, 1.0)]  # level with the water
             p.enable_parallel_projection()
-            p.camera.parallel_scale = 0.55 * max(float(ext[2]), float(ext[1]) / aspect) * 1.08
+            p.camera.parallel_scale = S
+            self.z_top = zc + S * (1.0 - 2.0 * TOP_BAND)  # lowest z of the header band
+            self.z_foot = zc - S * (1.0 - 2.0 * FOOT_BAND)  # highest z of the legend band
         else:
             r = 0.5 * float(np.linalg.norm(ext))
             direction = np.array([-1.0, -0.9, 0.6])
             direction /= np.linalg.norm(direction)
-            p.camera_position = [tuple(centre + 2.3 * r * direction), tuple(centre), (0.0, 0.0, 1.0)]
+            f = centre + np.array([0.0, 0.0, 0.25 * r])  # aim above the centre: the hull sits below the header
+            p.camera_position = [tuple(f + 2.9 * r * direction), tuple(f), (0.0, 0.0, 1.0)]
             p.camera.view_angle = 30.0
         self._camera_set = True
 
@@ -155,33 +204,56 @@ class Scene:
         rad = 0.03 * self.r_axis
         p.add_mesh(pv.Sphere(radius=rad, center=G), color=COLOURS["G"], name="G", render=False)
         p.add_mesh(pv.Sphere(radius=rad, center=B), color=COLOURS["B"], name="B", render=False)
+        shown = [("G", G), ("B", B)]
         if np.linalg.norm(M[1:]) < 1.1 * self.r_axis:
             p.add_mesh(pv.Sphere(radius=rad, center=M), color=COLOURS["M"], name="M", render=False)
+            shown.append(("M", M))
             mtext = ""
         else:
             p.remove_actor("M", render=False)
-            mtext = f"  (M off view: BM {t.bm[k]:.2f} m)"
+            mtext = f"   M off view (BM {t.bm[k]:.2f} m)"
         if getattr(t, "note", ""):
             mtext += f"\n{t.note}"
+        self._letters(shown, rad)
         Z = np.array([G[0], B[1], G[2]])
         p.add_mesh(pv.Line(G, Z), color=COLOURS["lever"], line_width=6, name="lever", render=False)
         ra = self.r_axis
         top = max(G[2], B[2], 0.0) + 0.5 * ra
-        p.add_mesh(pv.Line(B - np.array([0, 0, 0.3 * ra]), np.array([B[0], B[1], top])), color=COLOURS["B"],
-                   line_width=1, name="vB", render=False)
-        p.add_mesh(pv.Line(G - np.array([0, 0, 0.5 * ra]), np.array([G[0], G[1], top])), color=COLOURS["G"],
-                   line_width=1, name="vG", render=False)
-        label = (f"heel {t.heel[k]:+.1f}°   GZ {t.gz[k]:+.3f} m   Δ {t.displacement:.3f} t   "
-                 f"{_draft_text(t.draft[k])}   trim {t.trim[k]:+.2f}°{mtext}")
-        fs = max(5, int(round(11 * self.size[0] / 960)))
+        if self.camera == "astern" and self._camera_set:
+            top = min(top, self.z_top)  # the verticals stop below the header text
+        for q, below, name in ((B, 0.3, "vB"), (G, 0.5, "vG")):  # verticals through B and G, clear of the texts
+            low = np.array([q[0], q[1], max(q[2] - below * ra, self.z_foot)])
+            p.add_mesh(pv.Line(low, np.array([q[0], q[1], top])), color=COLOURS[name[1]], line_width=1, name=name,
+                       render=False)
+        side, lever = side_words(float(t.heel[k]), float(t.gz[k]))
+        heel = f"heel {abs(t.heel[k]):.1f}° {side}" if t.heel[k] != 0 else "upright"
+        label = (f"{heel}   GZ {abs(t.gz[k]):.3f} m {lever}\n"
+                 f"Δ {t.displacement:.3f} t   {_draft_text(t.draft[k])}   trim {t.trim[k]:+.2f}° (+ bow down){mtext}")
+        fs = max(7, int(round(13 * self.size[0] / 960)))
         p.add_text(label, position="upper_left", font_size=fs, color="#222222", name="label", render=False)
-        p.add_text("G black   B blue   M green   GZ orange   (viewed from astern: starboard on the right)"
-                   if self.camera == "astern" else "G black   B blue   M green   GZ orange",
-                   position="lower_left", font_size=max(4, fs - 3), color="#444444", name="legend", render=False)
-        if not self._camera_set:
-            self._set_camera()
+        p.add_text("G centre of gravity (black)   B centre of buoyancy (blue)   M metacentre (green)   "
+                   "GZ lever (orange)\n" + CAMERA_NOTE[self.camera],
+                   position="lower_left", font_size=max(6, fs - 2), color="#444444", name="legend", render=False)
         p.render()
         p.screenshot(path)
+
+    def _letters(self, shown: list[tuple[str, np.ndarray]], rad: float) -> None:
+        """The letters G, B, M beside their marks (offset up and to the left on the picture)."""
+        # G up and to the left, B down and to the left, M up and to the right, so that letters of marks
+        # that nearly coincide (B and M at large heels) do not overlap; seen from astern +y is the left
+        side = {"G": (1.0, 1.0), "B": (1.0, -1.4), "M": (-1.0, 1.0)}
+        pts = []
+        for n, q in shown:
+            a, b = side[n]
+            if self.camera == "astern":
+                pts.append(q + np.array([0.0, 2.6 * a * rad, 2.0 * b * rad]))
+            else:
+                pts.append(q + np.array([0.0, 0.0, 2.5 * b * rad]))
+        fs = max(8, int(round(16 * self.size[0] / 960)))
+        self.plotter.add_point_labels(np.array(pts), [n for n, _ in shown], font_size=fs, bold=True,
+                                      text_color="#111111", show_points=False, shape="rect", shape_color="white",
+                                      shape_opacity=0.75, margin=2, always_visible=True, name="letters",
+                                      render=False)
 
     def close(self) -> None:
         self.plotter.close()

@@ -168,10 +168,13 @@ def write_sweep(hull: Hull, trace: Trace, out: str, *, view: str = "both", size:
             fh.write(to_json(trace.to_dict()))
         written.append("trace.json")
         if view in ("section", "both"):
-            from .plots import section_view
+            from .figure_data import largest_section_outline, section_data
+            from .figures import section_plot
 
             t = time.perf_counter()
-            section_view(hull, [trace], os.path.join(tmp, "section.png"), size=size)
+            name = trace.label or os.path.basename(str(getattr(hull, "name", "")))
+            section_plot(section_data(trace, name, outline=largest_section_outline(hull)),
+                         path=os.path.join(tmp, "section.png"))
             tt["section"] = time.perf_counter() - t
             written.append("section.png")
         if view in ("3d", "both"):

@@ -38,7 +38,8 @@ class FloatingHull(Hull):
 def load_hull(source: Any, units: str = "m", *, forward: str = "+x", up: str = "+z",
               offset: Sequence[float] = (0.0, 0.0, 0.0), flip_inside_out: bool = False,
               merge_overlaps: bool = False, name: str | None = None, x_ref: float | None = None,
-              x_aft: float | None = None, x_fore: float | None = None, close_holes: bool = False) -> FloatingHull:
+              x_aft: float | None = None, x_fore: float | None = None, close_holes: bool = False,
+              progress: Any = None) -> FloatingHull:
     """Load and check a hull mesh; raise if it cannot be used.
 
     Parameters
@@ -59,13 +60,16 @@ def load_hull(source: Any, units: str = "m", *, forward: str = "+x", up: str = "
     x_aft, x_fore : float, optional [m]
         x of the aft and fore perpendiculars or draft marks where drafts aft and fore are read;
         default the hull's ends.
+    progress : callable(stage, done, total), optional
+        Called as reading and checking advance (see :func:`meshhydro.mesh.check_mesh`).
 
     Raises
     ------
     InputError, InvalidMeshError
     """
     md, rep = check_mesh(source, units=units, forward=forward, up=up, offset=tuple(offset),
-                         flip_inside_out=flip_inside_out, merge_overlaps=merge_overlaps, close_holes=close_holes)
+                         flip_inside_out=flip_inside_out, merge_overlaps=merge_overlaps, close_holes=close_holes,
+                         progress=progress)
     if not rep.usable:
         n = len(rep.problems) - 1
         more = f" (and {n} more problems; see the mesh health report)" if n else ""

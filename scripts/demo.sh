@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # The main job on the shipped demo vessel "Brindle" (an invented 12 m work barge):
 # mesh check, hydrostatic table and curves, floating position, GZ curve with free trim,
-# IMO 2008 IS Code 2.2 criteria, and the rendered heel sweep. Outputs go to demo_out/.
+# IMO 2008 IS Code 2.2 criteria, the rendered heel sweep and the design-review report. Outputs go to
+# demo_out/.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 MH="${MESHHYDRO:-meshhydro}"
@@ -30,5 +31,7 @@ echo; echo "== 5b. with the weather criterion (IS Code 2.3; plot $OUT/gz_weather
 "$MH" kg-limits "$CASE" --displacements 30:50:5 --set imo2008-weather --plot "$OUT/kg_limits.png"
 echo; echo "== 6. heel sweep: frames, section view, contact sheet, GIF in $OUT/sweep/"
 "$MH" sweep "$CASE" --heels 0:60:5 --out "$OUT/sweep" --sheet --gif --quiet
+echo; echo "== 7. design-review report: one self-contained HTML file $OUT/review.html (exit 1: a condition fails)"
+"$MH" report "$CASE" --out "$OUT/review.html" --sections 10 --quiet || true
 echo; echo "done: outputs in $OUT/"
 ls -1 "$OUT" "$OUT/sweep"

@@ -275,7 +275,7 @@ def test_figure_files_by_suffix(tmp_path, suffix, magic):
     with open(path, "rb") as fh:
         assert fh.read(len(magic)) == magic
     assert svg.lstrip().startswith("<?xml") and "<svg" in svg and "righting lever GZ [m]" in svg
-    with pytest.raises(InputError, match=r"\.png, \.svg or \.pdf"):
+    with pytest.raises(InputError, match=r"suffix \.jpg; use \.png, \.svg, \.pdf"):
         figures.gz_curve({"vessel": "box", "sides": [_side()]}, path=os.path.join(tmp_path, "gz.jpg"))
     assert sorted(os.listdir(tmp_path)) == ["gz" + suffix]  # nothing half-written left behind
     other = os.path.join(tmp_path, "doc" + suffix)

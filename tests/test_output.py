@@ -315,17 +315,18 @@ def test_json_keeps_full_precision():
 
 
 def test_plots_follow_the_suffix(tmp_path):
-    from meshhydro import plots
+    from meshhydro import figures
 
-    keys = ["draft", "displacement", "volume", "vcb", "kmt", "bmt", "lcb", "lcf", "awp", "wsa", "tpc", "mct",
-            "cb", "cp", "cm", "cwp"]
+    keys = ["draft", "displacement", "volume", "vcb", "kmt", "bmt", "bml", "kml", "lcb", "lcf", "awp", "wsa", "tpc",
+            "mct", "cb", "cp", "cm", "cwp"]
     rows = [{k: 1.0 + 0.1 * i + 0.01 * j for j, k in enumerate(keys)} for i in range(3)]
-    plots.hydrostatic_curves(rows, str(tmp_path / "h.svg"))
-    plots.hydrostatic_curves(rows, str(tmp_path / "h.pdf"))
+    data = {"vessel": "box", "rows": rows}
+    figures.hydrostatic_curves(data, path=str(tmp_path / "h.svg"))
+    figures.hydrostatic_curves(data, path=str(tmp_path / "h.pdf"))
     assert "<svg" in (tmp_path / "h.svg").read_text()
     assert (tmp_path / "h.pdf").read_bytes().startswith(b"%PDF-")
     with pytest.raises(InputError, match=r"h\.jpg: cannot write a figure with suffix \.jpg; use \.png, \.svg, \.pdf"):
-        plots.hydrostatic_curves(rows, str(tmp_path / "h.jpg"))
+        figures.hydrostatic_curves(data, path=str(tmp_path / "h.jpg"))
     assert sorted(os.listdir(tmp_path)) == ["h.pdf", "h.svg"]
 
 

@@ -1,7 +1,8 @@
 """The HTML report in a real browser: Debian's Chromium, headless, driven by Playwright.
 
 The page is opened from a file:// URL with every request that is not a file aborted and recorded;
-the test asserts that none was made, that the browser logged no console error and no page error
+the test asserts that none was made (for a hand-made document, one built from the API, and the real
+output of ``meshhydro report`` on a demo case), that the browser logged no console error and no page error
 (a Content-Security-Policy violation would be one), that the figures render, and that the page
 screenshots at desktop width and prints to PDF on A4 and on letter paper.
 
@@ -51,10 +52,26 @@ def browser(tmp_path_factory):
             ctx.close()
 
 
-@pytest.mark.parametrize("which", ["hand", "real"])
+def _cli_report(tmp_path) -> tuple[str, int]:
+    """The real ``meshhydro report`` of a demo case (sweep frames and animation included), and its figure count."""
+    from meshhydro.cli import main
+
+    out = tmp_path / "review.html"
+    code = main(["report", os.path.join(R.ROOT, "meshes", "cases", "tern_sloop.toml"), "--out", str(out),
+                 "--heels", "0:90:2", "--sweep-heels", "0:30:15", "--size", "480x360", "--sections", "6", "--quiet"])
+    assert code in (0, 1) and out.exists()
+    text = out.read_text(encoding="utf-8")
+    return text, text.count("<figure ")
+
+
+@pytest.mark.parametrize("which", ["hand", "real", "cli"])
 def test_report_in_chromium(browser, tmp_path, which):
-    doc = R.hand_document() if which == "hand" else R.real_document()
-    text = render_html(doc, draw=R.draw_hand if which == "hand" else figures.draw)
+    if which == "cli":
+        text, n_fig = _cli_report(tmp_path)
+    else:
+        doc = R.hand_document() if which == "hand" else R.real_document()
+        text = render_html(doc, draw=R.draw_hand if which == "hand" else figures.draw)
+        n_fig = sum(len(s.figures) for s in R.all_sections(doc))
     page_file = tmp_path / "report.html"
     page_file.write_text(text, encoding="utf-8")
     url = page_file.as_uri()
@@ -89,7 +106,6 @@ def test_report_in_chromium(browser, tmp_path, which):
         caution: document.querySelector('.mh-caution').innerText,
         verdict: document.querySelector('.mh-verdict').innerText })""")
     assert info["links"] and all(info["links"])
-    n_fig = sum(len(s.figures) for s in R.all_sections(doc))
     assert len(info["svgs"]) + len(info["imgs"]) == n_fig
     assert all(w > 300 for w in info["svgs"]) and all(info["imgs"])
     assert "CAUTION" in info["caution"] and info["verdict"].startswith("Verdict")

@@ -123,14 +123,14 @@ def test_trace_json_and_clean_rerun(rendered, tmp_path):
 
 def test_a_failed_sweep_leaves_no_temporary_folder(box_hull, tmp_path, monkeypatch):
     # the sweep is built in a hidden folder beside the target (output.atomic_dir); a failure removes it
-    from meshhydro import plots
+    from meshhydro import figures
 
     tr = heel_trace(box_hull, 1.025 * 180, (10.0, 0.0, 2.0), [0.0, 10.0])
 
     def broken(*a, **k):
         raise RuntimeError("drawing failed")
 
-    monkeypatch.setattr(plots, "section_view", broken)
+    monkeypatch.setattr(figures, "section_plot", broken)
     with pytest.raises(RuntimeError, match="drawing failed"):
         write_sweep(box_hull, tr, str(tmp_path / "review"), view="section")
     assert os.listdir(tmp_path) == []

@@ -1,6 +1,7 @@
 """Command-line interface: parse, call the analyses, render their documents, map errors to exit codes.
 
-One module per topic (``mesh``, ``stability``, ``sweep``, ``sections``, ``submergence``), each with a ``register``,
+One module per topic (``mesh``, ``stability``, ``sweep``, ``sections``, ``submergence``, ``tanks``, ``limits``,
+``study``, ``report``), each with a ``register``,
 and ``common`` for shared options, loading and output; this module builds the parser and runs ``main``.
 
 Exit codes: 0 success; 1 a criteria check failed (``criteria`` only); 2 bad input;
@@ -19,6 +20,7 @@ from ..errors import MeshHydroError
 from ..criteria import CAUTION
 from . import limits as cli_limits
 from . import mesh as cli_mesh
+from . import report as cli_report
 from . import sections as cli_sections
 from . import stability as cli_stability
 from . import study as cli_study
@@ -46,6 +48,7 @@ def build_parser() -> argparse.ArgumentParser:
     cli_limits.register(sub)
     cli_submergence.register(sub)
     cli_tanks.register(sub)
+    cli_report.register(sub)
     return p
 
 

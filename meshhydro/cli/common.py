@@ -13,7 +13,7 @@ from typing import Sequence
 import numpy as np
 
 from ..analysis import CaseInput, from_case, from_mesh
-from ..document import Document
+from ..document import Document, Figure
 from ..errors import InputError
 from ..frames import FRESH_WATER, SEA_WATER
 from ..tolerances import ANGLE_SLACK
@@ -214,12 +214,13 @@ def density_override(args: argparse.Namespace) -> float | None:
 
 
 def load_mesh(args: argparse.Namespace, path: str | None = None) -> FloatingHull:
-    offset = mesh_option(args, "offset")
-    return load_hull(path or args.mesh, units=mesh_option(args, "units"), forward=mesh_option(args, "forward"),
-                     up=mesh_option(args, "up"), offset=parse_vec(str(offset), "--offset"),
-                     flip_inside_out=bool(args.flip_inside_out), merge_overlaps=bool(args.merge_overlaps),
-                     close_holes=bool(getattr(args, "close_holes", False)), x_aft=getattr(args, "x_aft", None),
-                     x_fore=getattr(args, "x_fore", None))
+    offset = parse_vec(str(mesh_option(args, "offset")), "--offset")
+    with progress(args, 1, "mesh") as bar:
+        return load_hull(path or args.mesh, units=mesh_option(args, "units"), forward=mesh_option(args, "forward"),
+                         up=mesh_option(args, "up"), offset=offset, flip_inside_out=bool(args.flip_inside_out),
+                         merge_overlaps=bool(args.merge_overlaps),
+                         close_holes=bool(getattr(args, "close_holes", False)), x_aft=getattr(args, "x_aft", None),
+                         x_fore=getattr(args, "x_fore", None), progress=bar.stage)
 
 
 def is_case(path: str) -> bool:
@@ -255,7 +256,8 @@ def _load_source(args: argparse.Namespace, openings: bool) -> CaseInput:
                f"not taken with a case file ({args.source} gives the load and openings)")
         refuse_mesh_options(args)
         refuse(args, ["x_aft", "x_fore"], f"not taken with a case file; {args.source} gives x_aft/x_fore in its [hull]")
-        return from_case(args.source, args.condition, density=density_override(args))
+        with progress(args, 1, "mesh") as bar:
+            return from_case(args.source, args.condition, density=density_override(args), progress=bar.stage)
     refuse(args, ["condition"], f"{args.source} is a mesh, not a case file with conditions")
     if args.displacement is None or not args.cog:
         raise InputError(f"{args.source}: a mesh needs --displacement T and --cog X,Y,Z (or use a case file)")
@@ -272,7 +274,8 @@ def load_hull_source(args: argparse.Namespace) -> tuple[FloatingHull, float]:
 
         refuse_mesh_options(args)
         case = read_case(args.source)
-        return case.load_hull(), density(args, case.density)
+        with progress(args, 1, "mesh") as bar:
+            return case.load_hull(progress=bar.stage), density(args, case.density)
     return load_mesh(args, args.source), density(args)
 
 
@@ -280,7 +283,7 @@ def load_hull_source(args: argparse.Namespace) -> tuple[FloatingHull, float]:
 
 
 def progress(args: argparse.Namespace, total: int, label: str) -> Progress:
-    """A progress bar on a terminal, none with --quiet."""
+    """A progress bar (tqdm) on a terminal, none with --quiet or when standard error is not a terminal."""
     return Progress(total, label, enabled=False if getattr(args, "quiet", False) else None)
 
 
@@ -294,12 +297,21 @@ def write(args: argparse.Namespace, text: str) -> None:
         sys.stdout.write(text)
 
 
-def output(args: argparse.Namespace, doc: Document, plot: str | None = None) -> None:
-    """Draw the document's first figure to ``plot`` when asked, then write it in --format."""
-    if plot:
-        from ..plots import draw
+def output(args: argparse.Namespace, doc: Document, plot: str | None = None, figure: Figure | None = None) -> None:
+    """Draw ``figure`` (default the document's first) to ``plot`` when asked, then write it in --format.
 
-        figs = [f for s in doc.sections for f in s.figures]
-        draw(figs[0], plot)
+    Figures the report-grade views know (GZ, hydrostatic curves, ...) are drawn by
+    :mod:`meshhydro.figures`; the cross curves by :mod:`meshhydro.plots`."""
+    if plot:
+        from .. import figures
+        from ..figure_data import as_view
+
+        fig = figure or as_view([f for s in doc.sections for f in s.figures][0], doc.vessel)
+        if fig.view in figures.VIEWS:
+            figures.save(fig, plot)
+        else:
+            from ..plots import draw
+
+            draw(fig, plot)
         print(f"wrote {plot}", file=sys.stderr)
     write(args, render(doc, getattr(args, "format", "text")))

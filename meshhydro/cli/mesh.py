@@ -7,7 +7,7 @@ import sys
 from ..analysis import check_analysis, drafts_for_displacements, table_analysis
 from ..errors import InputError
 from .common import (check_figure, check_finite, density, load_mesh, mesh_args, mesh_option, out_args, output,
-                     parse_range, parse_vec, water_args)
+                     parse_range, parse_vec, progress, water_args)
 
 
 # ---------------------------------------------------------------------------- check
@@ -16,10 +16,11 @@ from .common import (check_figure, check_finite, density, load_mesh, mesh_args, 
 def cmd_check(args: argparse.Namespace) -> int:
     from ..mesh import check_mesh
 
-    md, rep = check_mesh(args.mesh, units=mesh_option(args, "units"), forward=mesh_option(args, "forward"),
-                         up=mesh_option(args, "up"), offset=parse_vec(str(mesh_option(args, "offset")), "--offset"),
-                         flip_inside_out=args.flip_inside_out, merge_overlaps=args.merge_overlaps,
-                         close_holes=args.close_holes)
+    offset = parse_vec(str(mesh_option(args, "offset")), "--offset")
+    with progress(args, 1, "mesh") as bar:
+        md, rep = check_mesh(args.mesh, units=mesh_option(args, "units"), forward=mesh_option(args, "forward"),
+                             up=mesh_option(args, "up"), offset=offset, flip_inside_out=args.flip_inside_out,
+                             merge_overlaps=args.merge_overlaps, close_holes=args.close_holes, progress=bar.stage)
     output(args, check_analysis(rep))
     if not rep.usable:
         print(f"meshhydro: {rep.problems[0]}", file=sys.stderr)

@@ -86,9 +86,11 @@ def cmd_sections(args: argparse.Namespace) -> int:
         write_atomic(args.bonjean, to_csv(bj.rows(), ["station_x", "draft", "area", "vertical_moment"]))
         print(f"wrote {args.bonjean}", file=sys.stderr)
     if args.plot:
-        from ..plots import convergence_plot
+        from ..figures import convergence_plot
 
-        convergence_plot(conv, args.plot, title=f"Section estimates vs exact at draft {drafts[-1]:g} m: {hull.name}")
+        convergence_plot({"vessel": hull.name, "rows": conv,
+                          "title": f"Section estimates vs exact at draft {drafts[-1]:g} m: {hull.name}"},
+                         path=args.plot)
         print(f"wrote {args.plot}", file=sys.stderr)
     if args.format == "json":
         units = {**SECTION_UNITS, **CMP_UNITS, "stations": "m", "drafts": "m", "sectional_areas": "m2"}

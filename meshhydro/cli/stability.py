@@ -91,7 +91,16 @@ def cmd_criteria(args: argparse.Namespace) -> int:
     rep, doc = analysis.criteria_analysis(inp, cset, hs, direction=args.direction, free_trim=not args.fixed_trim,
                                           progress=bar)
     bar.close()
-    output(args, doc, args.plot)
+    fig = None
+    if args.plot:
+        from ..document import Figure
+        from ..figure_data import gz_data
+
+        f = doc.section("results").figures[0]
+        sides = analysis.choose_sides(inp.hull, inp.condition, args.direction)
+        fig = Figure(f.key, f.title, "gz_curve", gz_data(f.data, sides, inp.hull.name, cset=cset, report=rep,
+                                                        title=f.title))
+    output(args, doc, args.plot, fig)
     return 0 if rep.passed else 1
 
 

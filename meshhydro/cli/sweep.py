@@ -56,14 +56,14 @@ def cmd_compare(args: argparse.Namespace) -> int:
     from ..loading import read_case
     from ..output import to_json, write_atomic
     from ..tank_case import resolve_condition
-    from ..plots import section_view
+    from ..figure_data import compare_data
+    from ..figures import compare_overlay
     from ..sweep import heel_trace
 
     if len(args.sources) < 2:
         raise InputError("compare needs two or more case files (CASE.toml or CASE.toml@condition)")
     check_figure(args.out, "--out")
     heels = parse_range(args.heels, "--heels")
-    size = parse_size(args.size)
     hulls, traces, labels = [], [], []
     cache: dict[str, Any] = {}
     for s in args.sources:
@@ -82,7 +82,8 @@ def cmd_compare(args: argparse.Namespace) -> int:
                                  compartments=cond.flooded))
         hulls.append(hull)
         labels.append(label)
-    section_view(hulls, traces, args.out, size=size, labels=labels)
+    compare_overlay(compare_data(traces, labels, f"Heel sweeps compared: {len(traces)} cases, "
+                                                 f"{heels[0]:g}..{heels[-1]:g}°"), path=args.out)
     print(f"wrote {args.out}", file=sys.stderr)
     if args.trace:
         write_atomic(args.trace, to_json([t.to_dict() for t in traces]))
@@ -112,5 +113,4 @@ def register(sub: argparse._SubParsersAction) -> None:
     c.add_argument("--heels", default="0:60:5", help="START:STOP:STEP [deg] (default 0:60:5)")
     c.add_argument("--out", required=True, help="figure to write (.png, .svg or .pdf)")
     c.add_argument("--trace", help="also write the traces as JSON")
-    c.add_argument("--size", default="960x720")
     c.set_defaults(func=cmd_compare)

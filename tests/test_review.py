@@ -1,0 +1,168 @@
+"""The design-review report: composition from builders, checksums, criteria marks, the CLI command."""
+from __future__ import annotations
+
+import hashlib
+import os
+import re
+
+import numpy as np
+import pytest
+
+import meshhydro
+from meshhydro import review
+from meshhydro.cli import main
+from meshhydro.criteria import CAUTION, IMO_2008_GENERAL
+from meshhydro.document import Section
+from meshhydro.figure_data import gz_data
+from meshhydro.render import side_words
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+BARGE_CASE = os.path.join(ROOT, "meshes", "cases", "brindle_barge.toml")
+BARGE = os.path.join(ROOT, "meshes", "brindle_barge.stl")
+FAST = review.ReviewOptions(heels=np.arange(0.0, 61.0, 5.0), sweep_heels=None)
+
+
+def _sha(path: str) -> str:  # checked against Python's hashlib, not the program's own helper
+    with open(path, "rb") as fh:
+        return hashlib.sha256(fh.read()).hexdigest()
+
+
+@pytest.fixture(scope="module")
+def barge_review():
+    rv = review.open_review(BARGE_CASE, FAST)
+    return rv, review.report_document(rv)
+
+
+def test_report_covers_the_case(barge_review):
+    rv, doc = barge_review
+    keys = [s.key for s in doc.sections]
+    assert keys == ["vessel", "hydrostatics", "conditions", "assumptions"]  # no sweep, no sections asked
+    conds = doc.section("conditions").sections
+    assert [c.title for c in conds] == ["Condition: loaded with deck cargo", "Condition: light"]
+    for c in conds:
+        assert [s.key for s in c.sections] == ["weights", "equilibrium", "righting", "criteria"]  # no tanks
+    # every criterion of the set on every side, with a margin = attained - required
+    crit = [t for s in conds for t in s.sections[3].tables if t.key == "results"]
+    for table, cr in zip(crit, rv.runs, strict=True):
+        assert len(table.rows) == len(IMO_2008_GENERAL.items) * len(cr.sides)
+        for r in table.rows:
+            if r["attained"] is not None:
+                assert r["margin"] == pytest.approx(r["attained"] - r["required"])
+    assert doc.verdict == all(cr.report.passed for cr in rv.runs)
+    assert CAUTION in doc.cautions and CAUTION in doc.section("assumptions").notes
+
+
+def test_inputs_are_tied_by_sha256(barge_review):
+    _, doc = barge_review
+    got = {os.path.basename(i["path"]): i["sha256"] for i in doc.meta["inputs"]}
+    assert got == {"brindle_barge.toml": _sha(BARGE_CASE), "brindle_barge.stl": _sha(BARGE)}
+    assert doc.meta["version"] == meshhydro.__version__
+
+
+def test_gz_figure_carries_the_criteria(barge_review):
+    rv, doc = barge_review
+    cr = rv.runs[0]
+    fig = doc.section("conditions").sections[0].sections[2].figures[0]
+    assert fig.view == "gz_curve"
+    labels = [lim["label"] for lim in fig.data["limits"]]
+    # IMO 2008 IS Code, Part A, 2.2.2 and 2.2.3 (limits as printed; clause numbers from memory)
+    assert any(lim["kind"] == "gz" and lim["value"] == 0.2 and lim["from"] == 30.0 for lim in fig.data["limits"])
+    assert any(lim["kind"] == "angle" and lim["value"] == 25.0 for lim in fig.data["limits"])
+    assert len(labels) == len(set(labels))
+    for side in fig.data["sides"]:
+        sign = 1 if side["name"] == "starboard" else -1
+        # the marked maximum is the printed one, and the drawn curve never rises above it
+        assert (side["max_gz"], side["angle_of_max"]) == cr.curve.max_gz(sign)
+        assert max(side["gz"]) <= side["max_gz"] + 1e-12
+        # the shaded areas are the criteria's ranges, with the attained values of the criteria table
+        first = next(r for r in cr.report.results if r.side == side["name"] and r.id == "2.2.1")
+        assert "0° to 30°" in first.text  # clause 2.2.1's first area limit
+        assert (0.0, 30.0, first.attained) in side["areas"]
+
+
+def test_both_sides_read_righting_positive():
+    # Closed-form symmetry: a port-starboard symmetric hull with G on the centreline has GZ(-φ) = -GZ(φ),
+    # so the two sides drawn righting-positive coincide.
+    hull = meshhydro.load_hull(BARGE)
+    curve = hull.righting_curve(displacement=40.0, cog=(6.0, 0.0, 1.2), heels=np.arange(-60.0, 61.0, 5.0))
+    d = gz_data(curve, (1, -1), "barge")
+    s, p = d["sides"]
+    assert s["heel"] == p["heel"]
+    assert np.allclose(s["gz"], p["gz"], atol=1e-7)
+    assert max(s["gz"]) > 0.1
+
+
+def test_a_builder_adds_a_section():
+    def extra(rv: review.Review) -> Section:
+        return Section("extra", f"Extra for {rv.vessel}")
+
+    rv = review.open_review(BARGE_CASE, FAST)
+    doc = review.report_document(rv, builders=[extra, review.assumptions_section])
+    assert [s.key for s in doc.sections] == ["extra", "assumptions"]
+    assert doc.sections[0].title == "Extra for brindle_barge.stl"
+
+
+@pytest.mark.parametrize("heel, gz, words", [
+    (20.0, 0.3, ("to starboard", "righting")), (20.0, -0.1, ("to starboard", "heeling")),
+    (-20.0, -0.3, ("to port", "righting")), (-20.0, 0.1, ("to port", "heeling")),
+    (0.0, 0.02, ("upright", "heels to port")), (0.0, -0.02, ("upright", "heels to starboard")),
+    (0.0, 0.0, ("upright", "no lever")), (0.0, 1e-17, ("upright", "no lever")), (30.0, -3e-4, ("to starboard", "no lever")),
+])
+def test_frame_header_words(heel, gz, words):
+    # README conventions: heel + = starboard down; GZ + rights the vessel from a positive heel
+    assert side_words(heel, gz) == words
+
+
+def _run(*argv):
+    return main(list(argv))
+
+
+def test_report_command_writes_one_file(tmp_path, capsys):
+    out = tmp_path / "review.html"
+    code = _run("report", BARGE_CASE, "--out", str(out), "--heels", "0:60:5", "--sweep-heels", "0:20:20",
+                "--size", "320x240", "--sections", "4", "--waterlines", "4", "--quiet")
+    err = capsys.readouterr().err
+    assert code == 1  # the loaded condition fails IMO 2008 2.2.3 (angle of max GZ below 25°), as README shows
+    text = out.read_text(encoding="utf-8")
+    assert sorted(os.listdir(tmp_path)) == ["review.html"]  # no temporaries left
+    assert _sha(BARGE) in text and _sha(BARGE_CASE) in text and meshhydro.__version__ in text
+    assert "Heel sweep: loaded with deck cargo" in text and "Section-based estimates" in text
+    assert text.count('src="data:image/png;base64,') == 2 and text.count('src="data:image/gif;base64,') == 1
+    assert not re.search(r'(?:src|href)="(?:https?:)?//', text)
+    assert "\r" not in err and "%|" not in err  # --quiet: no bars
+
+
+@pytest.mark.parametrize("argv, message", [
+    (["--out", "r.txt"], "give a file ending in .html"),
+    (["--out", "r.html", "--no-sweep", "--camera", "oblique"], "--camera is unused with --no-sweep"),
+    (["--out", "r.html", "--waterlines", "5"], "--waterlines applies to --sections"),
+    (["--out", "r.html", "--sections", "1"], "at least 2 station intervals"),
+    (["--out", "r.html", "--heels", "0:200:5"], "--heels takes angles from 0 to 180"),
+    (["--out", "r.html", "--sweep-condition", "nope"], "no condition named 'nope'"),
+])
+def test_report_bad_options(tmp_path, capsys, monkeypatch, argv, message):
+    monkeypatch.chdir(tmp_path)
+    code = _run("report", BARGE_CASE, *argv, "--quiet")
+    err = capsys.readouterr().err
+    assert code == 2 and message in err and len(err.strip().splitlines()) == 1
+    assert os.listdir(tmp_path) == []
+
+
+def test_report_needs_a_case_file(tmp_path, capsys):
+    code = _run("report", BARGE, "--out", str(tmp_path / "r.html"))
+    assert code == 2 and "report takes a case file" in capsys.readouterr().err
+
+
+def test_outline_segments_chain_into_closed_loops():
+    from meshhydro.figure_data import chain_segments, largest_section_outline
+
+    # a unit square's edges, out of order: one closed polyline of 5 points (common practice: a loop
+    # repeats its first point at the end)
+    sq = np.array([[[1, 0], [1, 1]], [[0, 0], [1, 0]], [[0, 1], [0, 0]], [[1, 1], [0, 1]]], dtype=float)
+    lines = chain_segments(sq)
+    assert len(lines) == 1 and len(lines[0]) == 5 and np.array_equal(lines[0][0], lines[0][-1])
+    # the catamaran's widest section is two separate closed loops, one per demi-hull
+    cat = meshhydro.load_hull(os.path.join(ROOT, "meshes", "twinfin_cat.stl"))
+    loops = largest_section_outline(cat)
+    assert len(loops) == 2 and all(np.array_equal(p[0], p[-1]) for p in loops)
+    assert sorted(np.sign([p[:, 0].mean() for p in loops])) == [-1.0, 1.0]
