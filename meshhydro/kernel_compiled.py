@@ -19,15 +19,7 @@ import numpy as np
 from .kernel_clip import Clip, flat_segments as clip_flat_segments
 from .kernel_prep import Prepared
 
-try:
-    from numba import njit
-
-    AVAILABLE = True
-except ImportError:  # pragma: no cover - numba is a declared dependency
-    AVAILABLE = False
-
-    def njit(*args, **kwargs):  # noqa: D103 - stand-in so the module imports without numba
-        return lambda f: f
+from .jit import AVAILABLE, njit
 
 
 @dataclass(frozen=True, eq=False)

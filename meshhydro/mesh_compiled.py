@@ -10,15 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-try:
-    from numba import njit
-
-    AVAILABLE = True
-except ImportError:  # pragma: no cover - numba is a declared dependency
-    AVAILABLE = False
-
-    def njit(*args, **kwargs):  # noqa: D103 - stand-in so the module imports without numba
-        return lambda f: f
+from .jit import AVAILABLE, njit
 
 
 @njit(cache=True, nogil=True)
