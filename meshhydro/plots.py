@@ -8,30 +8,13 @@ from typing import Any
 import numpy as np
 
 from .criteria import CAUTION_SHORT as CAUTION
+from .figures_common import new_figure
 from .output import save_figure
-
-
-def _figure(*args: Any, **kw: Any):
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    return plt.subplots(*args, **kw)
-
-
-def _save(fig: Any, path: str, dpi: int = 130) -> None:
-    import matplotlib.pyplot as plt
-
-    try:
-        save_figure(path, fig, dpi=dpi)
-    finally:
-        plt.close(fig)
 
 
 def cross_curves(cc: Any, path: str, *, title: str = "") -> None:
     """KN against displacement, one line per heel angle."""
-    fig, ax = _figure(figsize=(9, 6))
+    fig, ax = new_figure((9, 6))
     for j, h in enumerate(cc.heels):
         ax.plot(cc.displacements, cc.kn[:, j], marker=".", label=f"{h:g}°")
     ax.set_xlabel("displacement Δ [t]")
@@ -41,13 +24,13 @@ def cross_curves(cc: Any, path: str, *, title: str = "") -> None:
     ax.set_title(title or "Cross curves of stability")
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
-    _save(fig, path)
+    save_figure(path, fig, dpi=130)
 
 
 def righting_curves(data: Any, path: str, *, title: str = "") -> None:
     """Several GZ curves of one condition on one axes (``data["curves"]``: (label, RightingCurve) pairs):
     the exact fluid shift beside the FSM virtual rise, a damaged ship beside the intact one."""
-    fig, ax = _figure(figsize=(10, 6))
+    fig, ax = new_figure((10, 6))
     for k, (label, curve) in enumerate(data["curves"]):
         h = curve.heel
         fine = np.linspace(h[0], h[-1], max(400, 4 * len(h)))
@@ -62,13 +45,13 @@ def righting_curves(data: Any, path: str, *, title: str = "") -> None:
     ax.set_title(title or "Righting-lever curves")
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
-    _save(fig, path)
+    save_figure(path, fig, dpi=130)
 
 
 def tank_calibration(tables: Any, path: str, *, title: str = "") -> None:
     """Sounding against volume and against transverse free-surface moment, one line per tank
     (``tables``: tank name -> calibration rows of :func:`meshhydro.tank_tables.calibration_table`)."""
-    fig, (a1, a2) = _figure(1, 2, figsize=(11, 5.5), sharey=True)
+    fig, (a1, a2) = new_figure((11, 5.5), 1, 2, sharey=True)
     for k, (name, rows) in enumerate(tables.items()):
         s = [r["sounding"] for r in rows]
         a1.plot([r["volume"] for r in rows], s, ".-", color=f"C{k}", label=name)
@@ -82,7 +65,7 @@ def tank_calibration(tables: Any, path: str, *, title: str = "") -> None:
     fig.suptitle(title or "Tank calibration")
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 0.97))
-    _save(fig, path)
+    save_figure(path, fig, dpi=130)
 
 
 def draw(figure: Any, path: str) -> None:

@@ -9,25 +9,8 @@ from typing import Any, Mapping
 import numpy as np
 
 from .criteria import CAUTION_SHORT as CAUTION
+from .figures_common import new_figure
 from .output import save_figure
-
-
-def _figure(*args: Any, **kw: Any) -> Any:
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    return plt.subplots(*args, **kw)
-
-
-def _save(fig: Any, path: str, dpi: int = 130) -> None:
-    import matplotlib.pyplot as plt
-
-    try:
-        save_figure(path, fig, dpi=dpi)
-    finally:
-        plt.close(fig)
 
 
 def _weather(ax: Any, side: str, w: Any) -> None:
@@ -72,7 +55,7 @@ def criteria_gz(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
     curve = data["curve"]
     weather = list(data["weather"].items())
     panels = weather or [(None, None)]
-    fig, axes = _figure(1, len(panels), figsize=(10 if len(panels) == 1 else 15, 6), squeeze=False)
+    fig, axes = new_figure((10 if len(panels) == 1 else 15, 6), 1, len(panels), squeeze=False)
     h = curve.heel
     fine = np.linspace(h[0], h[-1], max(400, 4 * len(h)))
     top = float(np.max(np.abs(h)))
@@ -97,7 +80,7 @@ def criteria_gz(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
     fig.suptitle(title or "GZ curve with heeling arms", fontsize=11)
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
-    _save(fig, path)
+    save_figure(path, fig, dpi=130)
 
 
 def kg_limits(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
@@ -105,7 +88,7 @@ def kg_limits(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
 
     ``data``: rows (dicts with displacement, kg_max, governing, gm_required)."""
     rows = [r for r in data["rows"] if r["kg_max"] is not None]
-    fig, ax = _figure(figsize=(9, 6))
+    fig, ax = new_figure((9, 6))
     if rows:
         d = np.array([r["displacement"] for r in rows])
         kg = np.array([r["kg_max"] for r in rows])
@@ -129,4 +112,4 @@ def kg_limits(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
     ax.set_title(title or "KG limit curve", fontsize=9, wrap=True)
     fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
     fig.tight_layout(rect=(0, 0.02, 1, 1))
-    _save(fig, path)
+    save_figure(path, fig, dpi=130)

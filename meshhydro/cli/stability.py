@@ -92,14 +92,15 @@ def cmd_criteria(args: argparse.Namespace) -> int:
                                           progress=bar)
     bar.close()
     fig = None
-    if args.plot:
+    f = doc.section("results").figures[0]
+    if args.plot and f.view == "righting_curve":  # the plain curve: the report-grade view with the criteria drawn
         from ..document import Figure
         from ..figure_data import gz_data
 
-        f = doc.section("results").figures[0]
         sides = analysis.choose_sides(inp.hull, inp.condition, args.direction)
         fig = Figure(f.key, f.title, "gz_curve", gz_data(f.data, sides, inp.hull.name, cset=cset, report=rep,
                                                         title=f.title))
+    # heeling arms, the weather levers and the exact/FSM or damaged/intact pair keep their own views
     output(args, doc, args.plot, fig)
     return 0 if rep.passed else 1
 
