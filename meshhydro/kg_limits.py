@@ -199,6 +199,20 @@ def margins_of_report(report: Any) -> dict[str, float | None]:
     return out
 
 
+def _probe_at(curve: Any, g: np.ndarray) -> Any:
+    """The curve's true-geometry probe with G moved to ``g`` (3,) [m]: the refined maximum GZ and angles of
+    a KN-shifted curve are solved for the trial KG, never for the KN curve's own G."""
+    from .curve_probe import CurveProbe
+    from .load import FixedLoad
+
+    p = curve.probe
+    if p is None:
+        return None
+    out = CurveProbe(p.ev, p.v0, FixedLoad(curve.displacement, g), p.free_trim, p.heels, p.states)
+    out.points.update(p.points)
+    return out
+
+
 def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any = None, *,
                        kg_range: tuple[float, float] | None = None, lcg: float | None = None, tcg: float = 0.0,
                        heels: Sequence[float] | None = None, density: float = 1.025, openings: Sequence[Any] = (),
@@ -256,8 +270,9 @@ def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any 
     def fast(kn: KNCurve, kg: float) -> Margins:
         c = kn.curve
         gm = None if c.gm_upright is None else c.gm_upright - kg
-        moved = replace(c, gz=c.gz - kg * np.sin(np.radians(c.heel)), cog=c.cog + np.array([0.0, 0.0, kg]),
-                        gm_upright=gm)
+        g = c.cog + np.array([0.0, 0.0, kg])
+        moved = replace(c, gz=c.gz - kg * np.sin(np.radians(c.heel)), cog=g, gm_upright=gm, centres=None,
+                        probe=_probe_at(c, g), _memo={})
         if weather is not None and kn.displacement not in winds:  # the upright waterline does not move
             from .weather import curve_windage
 

@@ -113,3 +113,21 @@ def test_weather_heel_limit_governs_with_closed_form():
     p16 = math.radians(16.0)
     assert row.governing == "2.3 heel"
     assert row.kg_max == pytest.approx(T / 2 + bm + 0.5 * bm * math.tan(p16) ** 2 - lw1 / math.sin(p16), abs=1e-5)
+
+
+def test_limit_where_the_angle_of_max_governs_matches_full_curves():
+    # The KN shortcut must judge the peak of the trial KG's own curve: just below the limit the full free-trim
+    # curve meets IMO 2008 IS Code 2.2.3 (maximum GZ at 25° or more), just above it fails (limit as printed).
+    import os
+
+    from conftest import ROOT
+    from meshhydro.criteria import evaluate
+
+    hull = load_hull(os.path.join(ROOT, "meshes", "brindle_barge.stl"))
+    (row,) = kg_limits_for_hull(hull, [45.0], IMO_2008_GENERAL, heels=range(0, 91))
+    assert row.governing == "2.2.3" and row.method == "kn"
+    lcb = hull.hydrostatics(hull.draft_for_volume(45.0 / 1.025)).lcb
+    for dz, ok in ((-2e-3, True), (2e-3, False)):
+        c = hull.righting_curve(45.0, (lcb, 0.0, row.kg_max + dz), heels=np.arange(0.0, 91.0))
+        res = [r for r in evaluate(c, IMO_2008_GENERAL).results if r.id == "2.2.3"][0]
+        assert res.passed is ok
