@@ -234,8 +234,11 @@ def _gz_at(ctx: Context, p: AngleParams) -> Outcome:
 def _gz_max_beyond(ctx: Context, p: AngleParams) -> Outcome:
     x, y = ctx.curve.side(ctx.sign)
     m = x >= p.angle - tol.ANGLE_SLACK
+    v = ctx.curve.vanishing_angle(ctx.sign)
+    if v is not None:  # within the range of positive stability: not a second lobe (e.g. inverted, near 180°)
+        m &= x <= v
     if not m.any():
-        return Outcome(None)
+        return Outcome(None, "" if v is None else f"GZ vanishes at {v:.2f}°, before {p.angle:g}°")
     attained = float(y[m].max())
     gmax, amax = ctx.curve.max_gz(ctx.sign)
     if amax >= p.angle:

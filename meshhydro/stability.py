@@ -197,7 +197,7 @@ class RightingCurve:
         x, y = self.side(sign)
         if len(x) == 0:
             raise InputError("the curve has no angles on that side")
-        k = int(np.argmax(y))
+        k = _peak_index(y)
         best = (float(y[k]), float(x[k]))
         lo, hi = x[max(k - 1, 0)], x[min(k + 1, len(x) - 1)]
         if hi <= lo or self.max_beyond_range(sign):
@@ -221,7 +221,7 @@ class RightingCurve:
         if sign in self.swamping:
             return False
         x, y = self.side(sign)
-        return bool(len(y) >= 2 and int(np.argmax(y)) == len(y) - 1 and y[-1] > y[-2])
+        return bool(len(y) >= 2 and _peak_index(y) == len(y) - 1 and y[-1] > y[-2])
 
     def _root(self, sign: int, f: Callable[[float], float] | None, k: int, x: np.ndarray,
               y: np.ndarray) -> float:
@@ -346,6 +346,20 @@ class RightingCurve:
                 r["deck_freeboard"] = float(self.deck_freeboard[k])
             out.append(r)
         return out
+
+
+def _peak_index(y: np.ndarray) -> int:
+    """Index of the largest computed GZ of the first righting range on one side: from the first positive
+    point to the first point after it where GZ is no longer positive (common practice: the maximum GZ is
+    that of the range of positive stability, not a second lobe such as a stable inverted position near
+    180°). The largest point overall when GZ is nowhere positive."""
+    pos = np.flatnonzero(y > 0)
+    if len(pos) == 0:
+        return int(np.argmax(y))
+    i0 = int(pos[0])
+    ends = np.flatnonzero(y[i0:] <= 0)
+    i1 = i0 + int(ends[0]) if len(ends) else len(y) - 1
+    return i0 + int(np.argmax(y[i0:i1 + 1]))
 
 
 def _roots(sp: Any, a: float, b: float) -> list[float]:

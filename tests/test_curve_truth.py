@@ -244,3 +244,25 @@ def test_cli_marks_and_trim_in_metres(tmp_path):
     # plane geometry: the drafts at the marks differ by (x_fore - x_aft) tan(trim)
     assert eq["trim_m"] == pytest.approx(11.0 * math.tan(math.radians(eq["trim"])), rel=1e-9)
     assert eq["draft_fore"] - eq["draft_aft"] == pytest.approx(eq["trim_m"], abs=1e-12)
+
+
+def test_max_gz_and_gz_beyond_30_stay_in_the_first_range_of_stability():
+    # Common practice: the maximum GZ and "GZ at 30° or more" belong to the range of positive stability, not to
+    # a second lobe such as the stable inverted position near 180° that an off-centre load gives a catamaran.
+    import os
+
+    from conftest import ROOT
+    from meshhydro.criteria import IMO_2008_GENERAL, evaluate
+
+    hull = load_hull(os.path.join(ROOT, "meshes", "twinfin_cat.stl"))
+    c = hull.righting_curve(3.6, (4.7, 1.2, 1.6), heels=np.arange(-180.0, 181.0, 5.0))
+    x, y = c.side(-1)
+    assert y[-1] > 0.5 and y[(x > 50) & (x < 170)].max() < 0  # the inverted lobe exists on the port side
+    v = c.vanishing_angle(-1)
+    assert 40.0 < v < 45.0 and y[x == 40.0][0] > 0 > y[x == 45.0][0]
+    gmax, amax = c.max_gz(-1)
+    assert 0.0 < amax < v and gmax >= y[(x > 0) & (x < v)].max()
+    r = [r for r in evaluate(c, IMO_2008_GENERAL, sides=(-1,)).results if r.id == "2.2.2"][0]
+    assert r.attained == pytest.approx(y[(x >= 30.0) & (x <= v)].max())  # 0.324 m at 30°, not 1.2 m at 180°
+    a = [r for r in evaluate(c, IMO_2008_GENERAL, sides=(-1,)).results if r.id == "2.2.3"][0]
+    assert a.attained == pytest.approx(amax) and not a.passed
