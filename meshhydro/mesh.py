@@ -23,7 +23,8 @@ from .mesh_topology import (EdgeTable, EdgeUse, bodies_by_edges, body_sums, capp
 
 #: A hull larger than this in its longest extent [m] is taken as a unit mistake.
 MAX_PLAUSIBLE_LENGTH = 1000.0
-#: Smaller than this [m] is suspicious (but accepted with a warning).
+#: A hull smaller than this in its longest extent [m] is taken as a unit mistake (a 5 cm model is the least
+#: we accept; common practice: towing-tank and radio-controlled models are larger).
 MIN_PLAUSIBLE_LENGTH = 0.05
 
 
@@ -452,7 +453,8 @@ def _scale_findings(src: str, size: float, units: str) -> tuple[list[str], list[
         return [f"{src}: the hull is {size:.6g} m long in unit {units!r}; that looks like a unit "
                 f"mistake (try --units mm)"], []
     if size < MIN_PLAUSIBLE_LENGTH:
-        return [], [f"the hull is only {size:.4g} m long in unit {units!r}; check the unit"]
+        return [f"{src}: the hull is only {size:.4g} m long in unit {units!r}; that looks like a unit "
+                f"mistake (try --units m)"], []
     return [], []
 
 

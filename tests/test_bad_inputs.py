@@ -795,3 +795,20 @@ def test_cli_json_says_vessel_density_and_units(capsys):
     # fresh water is 1.000 t/m³ (README conventions; common practice)
     assert meta["density"] == 1.0 and meta["vessel"].endswith("brindle_barge.stl")
     assert meta["units"]["gz"] == "m" and meta["units"]["heel"] == "deg" and meta["caution"].startswith("CAUTION")
+
+
+def test_a_metre_mesh_read_as_millimetres_is_refused(capsys):
+    # A 12 m barge read with --units mm is 12 mm long: a unit mistake, refused (exit 3), never a table of numbers
+    from meshhydro.cli import main
+
+    assert main(["table", os.path.join(ROOT, "meshes", "brindle_barge.stl"), "--units", "mm",
+                 "--drafts", "0.0005"]) == 3
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "0.012 m long in unit 'mm'" in err[0] and "unit mistake" in err[0]
+
+
+def test_a_folder_in_place_of_a_case_or_mesh(capsys):
+    from meshhydro.cli import main
+
+    assert main(["float", os.path.join(ROOT, "meshes", "cases")]) == 2
+    assert "is a folder; give a case file (.toml) or a mesh file" in capsys.readouterr().err

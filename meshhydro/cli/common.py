@@ -7,6 +7,7 @@ from __future__ import annotations
 import argparse
 import dataclasses
 import math
+import os
 import sys
 from typing import Sequence
 
@@ -251,6 +252,8 @@ def _load_source(args: argparse.Namespace, openings: bool) -> CaseInput:
     check_finite(args, ("displacement", "fsm"))
     if not openings:
         refuse(args, ["opening"], "this command does not use openings")
+    if os.path.isdir(args.source):
+        raise InputError(f"{args.source}: is a folder; give a case file (.toml) or a mesh file")
     if is_case(args.source):
         refuse(args, ["displacement", "cog", "fsm", "opening"],
                f"not taken with a case file ({args.source} gives the load and openings)")
