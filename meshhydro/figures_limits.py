@@ -47,6 +47,10 @@ def kg_limits_figure(data: Mapping[str, Any]) -> Any:
     else:
         ax.text(0.5, 0.5, "no displacement has a KG limit in the search range", ha="center", va="center",
                 transform=ax.transAxes)
+    none = [float(r["displacement"]) for r in data["rows"] if r.get("kg_max") is None]
+    if none and rows:
+        ax.plot(none, [ax.get_ylim()[0]] * len(none), "x", ls="none", ms=9, color="0.15", clip_on=False,
+                label="no KG passes (fails already at KG 0)")
     ax.set_xlabel("displacement Δ [t]")
     ax.set_ylabel("largest KG, fluid-corrected [m]")
     ax.grid(True, alpha=0.3)

@@ -400,7 +400,9 @@ def righting_section(rv: Review, cr: ConditionRun) -> Section:
     c, curve = cr.inp.condition, cr.curve
     trim = "free" if curve.free_trim else "fixed"
     sec = Section("righting", "Righting levers")
-    title = f"{rv.vessel}, {c.name}: GZ (Δ {c.displacement:.3f} t, KG fluid {c.kg_fluid:.3f} m, {trim} trim)"
+    load = (f"KG fluid {c.kg_fluid:.3f} m" if not (c.tanks and c.fluid == "exact")
+            else f"KG {c.kg:.3f} m, exact fluid shift")
+    title = f"{rv.vessel}, {c.name}: GZ (Δ {c.displacement:.3f} t, {load}, {trim} trim)"
     sec.figures.append(Figure("gz", title, "gz_curve", gz_data(curve, cr.sides, rv.vessel, cset=rv.cset,
                                                               report=cr.report, title=title),
                               caption="both sides drawn righting-positive; shaded: the areas the criteria ask for; "

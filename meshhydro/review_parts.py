@@ -11,7 +11,7 @@ Hull frame (x forward, y to port, z up); m, t, t·m, t/m³; angles in degrees.
 """
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Any, Sequence
+from typing import Any, Sequence
 
 import numpy as np
 
@@ -22,8 +22,10 @@ from .figure_data import gz_data
 from .stability import RightingCurve
 from .submerged import NOTE as SUBMERGED_NOTE
 
-if TYPE_CHECKING:  # only for annotations: review imports this module
-    from .review import ConditionRun, Review
+#: The builders' arguments are :class:`meshhydro.review.Review` and :class:`meshhydro.review.ConditionRun`;
+#: they are annotated loosely here because review imports this module (imports flow one way).
+Review = Any
+ConditionRun = Any
 
 
 #: Derived values compared between the deciding curve and those beside it: (summary key, label, unit).
@@ -31,6 +33,9 @@ BESIDE_VALUES = (("gm_upright", "GM upright", "m"), ("max_gz", "max GZ", "m"), (
                  "deg"), ("vanishing_angle", "vanishing angle", "deg"), ("area_0_30", "area 0–30°", "m·rad"),
                  ("area_0_40", "area 0–40°", "m·rad"), ("area_30_40", "area 30–40°", "m·rad"))
 SIDE_WORD = {1: "starboard", -1: "port"}
+SIDE_SHORT = {1: "stbd", -1: "port"}
+#: Short column names of the curves in the beside tables (the section's notes spell them out).
+SHORT = {"exact": "exact", "fsm": "FSM", "intact": "intact"}
 
 
 def beside_figure(key: str, title: str, vessel: str, curves: Sequence[tuple[str, RightingCurve]],
@@ -55,9 +60,11 @@ def _beside(rv: Review, cr: ConditionRun, keys: Sequence[str], what: str) -> Sec
         return None
     c = cr.inp.condition
     curves = [(tk.curve_label(c), cr.curve)] + [(lab, oc) for _, lab, oc in others]
+    own = "damaged" if what == "intact" else SHORT[c.fluid or "exact"]
+    short = [own] + [SHORT[k] for k, _, _ in others]
     cols = [Column("heel", "heel", "deg", 1)] + [
-        Column(f"gz_{k}_{SIDE_WORD[s]}", f"GZ {lab}, to {SIDE_WORD[s]}", "m", 4)
-        for k, (lab, _) in enumerate(curves) for s in cr.sides]
+        Column(f"gz_{k}_{SIDE_WORD[s]}", f"{short[k]} {SIDE_SHORT[s]}", "m", 4)
+        for k in range(len(curves)) for s in cr.sides]
     step = 5.0 if len(cr.sides) == 1 else 10.0
     top = float(np.max(np.abs(cr.curve.heel)))
     rows = []
@@ -69,14 +76,16 @@ def _beside(rv: Review, cr: ConditionRun, keys: Sequence[str], what: str) -> Sec
                 r[f"gz_{k}_{SIDE_WORD[s]}"] = float(s * cv.gz[i[0]]) if len(i) else None
         rows.append(r)
     levers = Table(f"levers_{what}", "GZ at the computed heels (positive: righting)", cols, rows)
-    vcols = [Column("quantity", "quantity"), Column("unit", "unit")] + cols[1:]
+    vcols = [Column("quantity", "quantity")] + [Column(c.key, c.label, "", 4) for c in cols[1:]]
     sums = [[cv.summary(s) for s in cr.sides] for _, cv in curves]
-    vrows = [{"quantity": label, "unit": unit, **{f"gz_{k}_{SIDE_WORD[s]}": sm[j].get(key)
+    vrows = [{"quantity": f"{label} [{unit}]", **{f"gz_{k}_{SIDE_WORD[s]}": sm[j].get(key)
                                                  for k, sm in enumerate(sums) for j, s in enumerate(cr.sides)}}
              for key, label, unit in BESIDE_VALUES]
     names = ", ".join(o[1] for o in others)
     sec = Section(f"beside_{what}", f"{tk.curve_label(c)} (decides) beside {names}",
-                  tables=[Table(f"derived_{what}", "Derived values", vcols, vrows), levers])
+                  tables=[Table(f"derived_{what}", "Derived values", vcols, vrows), levers],
+                  notes=["columns: " + "; ".join(f"{sh} = {lab}" for sh, (lab, _) in zip(short, curves, strict=True))
+                         + " (the first decides); stbd = heeling to starboard, port = heeling to port."])
     title = f"{rv.vessel}, {c.name}: GZ, {tk.curve_label(c)} beside {names}"
     sec.figures.append(beside_figure(f"gz_beside_{what}", title, rv.vessel, curves, cr.sides,
                                      caption=f"the first curve ({tk.curve_label(c)}) decides; the others are "
@@ -117,10 +126,10 @@ def tanks_section(rv: Review, cr: ConditionRun) -> Section | None:
     ws = tk.weight_section(c)
     groups = ws.tables[0]
     groups.title = "Weight groups (tank contents at their upright centres)"
-    cols = [Column("tank", "tank"), Column("shape", "shape"), Column("density", "fluid density", "t/m³", 3),
-            Column("capacity", "capacity", "m³", 4), Column("given", "fill as given"),
-            Column("volume", "volume", "m³", 4), Column("full", "full", "%", 1), Column("mass", "mass", "t", 4),
-            Column("fsm", "FSM (ρ i_t, upright)", "t·m", 4)]
+    cols = [Column("tank", "tank"), Column("shape", "shape"), Column("density", "ρ fluid", "t/m³", 3),
+            Column("capacity", "capacity", "m³", 3), Column("given", "given"),
+            Column("volume", "volume", "m³", 3), Column("full", "full", "%", 1), Column("mass", "mass", "t", 3),
+            Column("fsm", "FSM", "t·m", 4)]
     sec = Section("tanks", "Weights and tanks", values=ws.values,
                   tables=[groups, Table("tank_fills", "Tanks in this condition", cols, _tank_rows(rv, cr))],
                   notes=tk.method_note(c) + [
@@ -145,6 +154,9 @@ def damage_section(rv: Review, cr: ConditionRun) -> Section | None:
     flooded, pos = d.tables[0], d.tables[1]
     flooded.title = "Flooded compartments (lost buoyancy at the damaged position)"
     pos.title = "Damaged position against intact; heights above water (deck edge: its lowest point)"
+    pos.columns = [Column(col.key, col.key.split(":", 1)[1] if col.key.startswith("opening:") else
+                          col.label.replace("_", " ").replace("gmt", "GMt"), col.unit, col.digits)
+                   for col in pos.columns]
     row = pos.rows[0]
     keys = [k for k in row if k.startswith("opening:")]
     under = [k.split(":", 1)[1] for k in keys if row[k] is not None and row[k] <= 0]
@@ -211,7 +223,10 @@ def kg_limits_section(rv: Review) -> Section | None:
         bar.close()
     sec = doc.sections[0]
     sec.key, sec.title = "kg_limits", f"KG limits: {rv.cset.name}"
-    sec.tables[0].title = "Largest fluid-corrected KG per displacement, and the criterion that governs"
+    lim = sec.tables[0]
+    lim.title = "Largest fluid-corrected KG per displacement, and the criterion that governs"
+    labels = {"gm_required": "GM required"}  # a label that may wrap; the notes name the other keys
+    lim.columns = [Column(col.key, labels.get(col.key, col.label), col.unit, col.digits) for col in lim.columns]
     fig = sec.figures[0]
     fig.title = f"{rv.vessel}: KG limits ({rv.cset.name}, free trim)"
     fig.data = {"vessel": rv.vessel, "rows": rows, "title": fig.title}
