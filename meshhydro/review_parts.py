@@ -198,9 +198,10 @@ def weather_section(rv: Review, cr: ConditionRun) -> Section | None:
     return Section("weather", "Weather criterion (severe wind and rolling, IS Code 2.3)",
                    tables=[Table("weather", "", cols, rows)],
                    notes=["lw1 from the windage area A and its lever Z at the wind pressure P; lw2 = 1.5 lw1 "
-                          "(gust); θ1 the roll to windward from θ0; area a to windward of θ0 up to lw2, area b "
-                          "from the gust-lever intercept to θ2; the criterion asks b ≥ a and θ0 within its "
-                          "limit (the criteria table gives the verdict)."])
+                          "(gust); θ1 the roll to windward from θ0; area a lies between lw2 and the curve from "
+                          "θ0 − θ1 to the gust-lever intercept, area b between the curve and lw2 from that "
+                          "intercept to θ2; the criterion asks b ≥ a and θ0 within its limit (the criteria "
+                          "table gives the verdict)."])
 
 
 # ---------------------------------------------------------------------------- KG limits
@@ -254,10 +255,15 @@ def submergence_section(rv: Review, cr: ConditionRun) -> Section | None:
         notes=[SUBMERGED_NOTE, "B is fixed in the body and M lies on B at every heel: GZ = BG sin φ with the "
                                "sign of KB − KG (textbook)."])
     lo, hi = float(rv.hull.bounds[0][2]), float(rv.hull.bounds[1][2])
-    drafts = lo + (hi - lo) * np.linspace(0.05, 1.0, 20)
+    # up to the top (a flat top there is still the waterplane: the limit from below) and just over it
+    drafts = lo + (hi - lo) * np.append(np.linspace(0.05, 1.0, 20), 1.01)
     _, doc = submergence_analysis(rv.hull, drafts=drafts, density=rv.case.density, kg=c.kg_fluid)
     seq = doc.sections[0]
     seq.key, seq.title = "submergence_sequence", "Ballasting down to this state (upright, level trim)"
+    keep = ("draft", "displacement", "kb", "awp", "bmt", "kmt", "gmt", "submerged")
+    t = seq.tables[0]
+    t.columns = [col for col in t.columns if col.key in keep]
+    t.rows = [{k: r[k] for k in keep if k in r} for r in t.rows]  # new dicts: the figure keeps its rows
     seq.figures[0].title = f"{rv.vessel}: submergence, KG fluid {c.kg_fluid:.3f} m"
     sec.sections.append(seq)
     return sec

@@ -139,6 +139,8 @@ def test_report_command_writes_one_file(tmp_path, capsys):
     (["--out", "r.html", "--sections", "1"], "at least 2 station intervals"),
     (["--out", "r.html", "--heels", "0:200:5"], "--heels takes angles from 0 to 180"),
     (["--out", "r.html", "--sweep-condition", "nope"], "no condition named 'nope'"),
+    (["--out", "r.html", "--kg-limits", "0,10"], "displacements must be positive"),
+    (["--out", "r.html", "--kg-limits", "10:5:1"], "--kg-limits"),
 ])
 def test_report_bad_options(tmp_path, capsys, monkeypatch, argv, message):
     monkeypatch.chdir(tmp_path)
@@ -315,3 +317,6 @@ def test_fully_submerged_condition(tmp_path):
     assert vals["kb"] == pytest.approx(tm.center_mass[2], abs=1e-9)
     assert vals["gmt"] == pytest.approx(tm.center_mass[2] - kg, abs=1e-9)
     assert sub.sections[0].figures[0].view == "submergence"
+    # the sequence ends fully under water, where KM = KB (no waterplane inertia; textbook)
+    last = sub.sections[0].tables[0].rows[-1]
+    assert last["submerged"] and last["awp"] == 0.0 and last["kmt"] == pytest.approx(tm.center_mass[2], abs=1e-9)
