@@ -320,3 +320,18 @@ def test_fully_submerged_condition(tmp_path):
     # the sequence ends fully under water, where KM = KB (no waterplane inertia; textbook)
     last = sub.sections[0].tables[0].rows[-1]
     assert last["submerged"] and last["awp"] == 0.0 and last["kmt"] == pytest.approx(tm.center_mass[2], abs=1e-9)
+
+
+def test_no_sweep_of_a_flooded_condition(tanks_review):
+    # the sweep floats the intact hull, so a damaged condition gets a note instead of pictures
+    import dataclasses
+
+    rv, _ = tanks_review
+    saved = rv.options
+    try:
+        rv.options = dataclasses.replace(saved, sweep_heels=np.array([0.0, 10.0]),
+                                         sweep_condition="starboard void flooded")
+        sec = review.sweep_section(rv)
+    finally:
+        rv.options = saved
+    assert sec.figures == [] and "flooded compartments" in sec.notes[0]
