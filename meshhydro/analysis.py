@@ -355,8 +355,13 @@ def _extra_notes(inp: CaseInput, curve: RightingCurve, cset: CriteriaSet, uprigh
 
 
 def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, direction: str = "auto",
-                      free_trim: bool = True, progress: Progress = None) -> tuple[Report, Document]:
+                      free_trim: bool = True, progress: Progress = None,
+                      keep: dict[str, Any] | None = None) -> tuple[Report, Document]:
     """A criteria set checked on the condition's GZ curve, and its report (verdict set).
+
+    ``keep`` (a dict, optional) receives the solved objects for a caller composing its own report:
+    ``curve`` (the deciding RightingCurve), ``sides``, ``others`` (the companion curves, as
+    :func:`meshhydro.analysis_tanks.companions`) and ``wind`` (the WindSetup or None).
 
     Weather and heeling-arm criteria take the case's [weather], [[windage]] and [[arm]] data
     (InputError when the set needs what the input lacks). With tanks the condition's ``fluid`` method
@@ -372,6 +377,8 @@ def criteria_analysis(inp: CaseInput, cset: CriteriaSet, heels: np.ndarray, *, d
     others = tk.companions(c, lambda **kw: solve_curve(inp, heels, direction=direction, free_trim=free_trim,
                                                        **kw)[0])
     what = tk.curve_label(c)
+    if keep is not None:
+        keep.update(curve=curve, sides=sides, others=others, wind=wind)
     extra = _extra_notes(inp, curve, cset, upright)
     sec = Section("results", f"decided on: {what}" if others else "", tables=[table],
                   notes=tk.method_note(c) + [f"note: {n}" for n in list(rep.notes) + extra])

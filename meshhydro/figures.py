@@ -258,6 +258,14 @@ def submergence_plot(data: Mapping[str, Any], *, path: str | None = None) -> str
     return finish(submergence_figure(data), path)
 
 
+def kg_limits_plot(data: Mapping[str, Any], *, path: str | None = None) -> str:
+    """Largest KG against displacement, marked by the governing criterion (SVG); see
+    :mod:`meshhydro.figures_limits`."""
+    from .figures_limits import kg_limits_figure
+
+    return finish(kg_limits_figure(data), path)
+
+
 #: Figure.view name -> drawing function (data, *, path) -> SVG text.
 VIEWS: dict[str, Callable[..., str]] = {
     "gz_curve": gz_curve,
@@ -266,6 +274,7 @@ VIEWS: dict[str, Callable[..., str]] = {
     "compare_overlay": compare_overlay,
     "convergence": convergence_plot,
     "submergence": submergence_plot,
+    "kg_limits": kg_limits_plot,
 }
 
 

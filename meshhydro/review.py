@@ -25,12 +25,14 @@ import numpy as np
 
 from . import __version__
 from . import analysis as A
+from . import review_parts as P
 from .criteria import CAUTION, CriteriaSet, Report, read_criteria
 from .document import Column, Document, Figure, Quantity, Section, Table
 from .equilibrium import Equilibrium
 from .figure_data import gz_data
 from .loading import Case, read_case
 from .stability import RightingCurve
+from .tank_case import build_tanks, resolve_condition
 from .vessel import FloatingHull
 
 #: A progress-bar factory: ``bars(total, label)`` returns a callable counting one unit per call, with close().
@@ -62,7 +64,9 @@ class ReviewOptions:
     None for no sweep; sweep_condition : condition name for the sweep (None: the first);
     sweep_size : frame size (width, height) px; camera : ``astern`` or ``oblique``;
     stations : station intervals of the section-based comparison, or None to leave it out;
-    waterlines : waterline intervals of that comparison; direction : heel side(s) (see analysis).
+    waterlines : waterline intervals of that comparison; direction : heel side(s) (see analysis);
+    kg_limits : displacements [t] of the KG-limit table for the report's criteria set, or None to
+    leave it out.
     """
 
     heels: np.ndarray = field(default_factory=lambda: np.arange(0.0, 181.0, 1.0))
@@ -75,6 +79,7 @@ class ReviewOptions:
     stations: int | None = None
     waterlines: int = 10
     direction: str = "auto"
+    kg_limits: np.ndarray | None = None
 
 
 @dataclass(eq=False)
@@ -88,6 +93,9 @@ class ConditionRun:
     sides: tuple[int, ...]
     report: Report
     criteria_doc: Document
+    #: the companion curves shown beside the deciding one: (key, label, RightingCurve) — the other
+    #: fluid method with tanks, the intact ship with flooding (see analysis_tanks.companions)
+    others: list[tuple[str, str, RightingCurve]] = field(default_factory=list)
 
 
 @dataclass(eq=False)
@@ -101,6 +109,8 @@ class Review:
     inputs: list[dict[str, str]]
     bars: Bars = _no_bars
     runs: list[ConditionRun] = field(default_factory=list)
+    #: the case's tanks built against the hull once (empty without tanks)
+    tanks: tuple[Any, ...] = ()
 
     @property
     def vessel(self) -> str:
@@ -154,22 +164,35 @@ def open_review(case_path: str, options: ReviewOptions = ReviewOptions(), *, bar
               {"role": "hull mesh", "path": case.mesh, "sha256": sha256_file(case.mesh)}]
     if cfile is not None:
         inputs.append({"role": "criteria set", "path": cfile, "sha256": sha256_file(cfile)})
-    return Review(case, hull, options, cset, inputs, bars)
+    tanks = build_tanks(case, hull) if case.spec is not None and case.spec.tanks else ()
+    return Review(case, hull, options, cset, inputs, bars, tanks=tanks)
+
+
+def case_input(rv: Review, name: str) -> A.CaseInput:
+    """The CaseInput of one condition as :func:`meshhydro.analysis.from_case` builds it: tank fills and
+    flooded compartments resolved against the hull, the case spec (weather, windage, arms) and the
+    condition's submerged depth."""
+    c = resolve_condition(rv.case, rv.hull, name, tanks=rv.tanks)
+    spec = rv.case.spec
+    specs = [s for s in getattr(spec, "conditions", ()) if s.name == c.name]
+    depth = specs[0].submerged_depth if specs else None
+    return A.CaseInput(rv.hull, c, rv.case.openings, rv.case.density,
+                       f"{os.path.basename(rv.case.path)}: {c.name}", spec, submerged_depth=depth)
 
 
 def solve_condition(rv: Review, name: str) -> ConditionRun:
-    """Floating position, righting curve and criteria of one condition."""
-    c = rv.case.condition(name)
-    inp = A.CaseInput(rv.hull, c, rv.case.openings, rv.case.density, f"{os.path.basename(rv.case.path)}: {c.name}")
+    """Floating position, righting curve (taken from the criteria analysis itself) and criteria of one condition."""
+    inp = case_input(rv, name)
+    c = inp.condition
     eq, fdoc = A.float_analysis(inp)
     o = rv.options
     bar = rv.bars(A.curve_count(o.heels, inp, o.direction), f"GZ curve, {c.name}")
+    kept: dict[str, Any] = {}
     try:
-        rep, cdoc = A.criteria_analysis(inp, rv.cset, o.heels, direction=o.direction, progress=bar)
+        rep, cdoc = A.criteria_analysis(inp, rv.cset, o.heels, direction=o.direction, progress=bar, keep=kept)
     finally:
         bar.close()
-    curve = cdoc.section("results").figures[0].data
-    return ConditionRun(inp, eq, fdoc, curve, A.choose_sides(rv.hull, c, o.direction), rep, cdoc)
+    return ConditionRun(inp, eq, fdoc, kept["curve"], kept["sides"], rep, cdoc, others=list(kept["others"]))
 
 
 # ---------------------------------------------------------------------------- case builders
@@ -252,7 +275,13 @@ def sweep_section(rv: Review) -> Section | None:
     o = rv.options
     if o.sweep_heels is None:
         return None
-    c = rv.case.condition(o.sweep_condition)
+    name = rv.case.condition(o.sweep_condition).name
+    c = next((cr.inp.condition for cr in rv.runs if cr.inp.condition.name == name), None)
+    c = c if c is not None else resolve_condition(rv.case, rv.hull, name, tanks=rv.tanks)
+    if c.flooded:  # the sweep floats the intact hull: its levers would not be this condition's
+        return Section("sweep", f"Heel sweep: {c.name}", notes=[
+            f"no sweep drawn: condition {c.name!r} has flooded compartments and the sweep shows the intact hull; "
+            "choose an intact condition for the sweep."])
     bar = rv.bars(len(o.sweep_heels), f"sweep, {c.name}")
     try:
         tr = heel_trace(rv.hull, c.displacement, c.cog, o.sweep_heels, density=rv.case.density, fsm=c.fsm,
@@ -260,6 +289,10 @@ def sweep_section(rv: Review) -> Section | None:
     finally:
         bar.close()
     sec = Section("sweep", f"Heel sweep: {c.name}")
+    if c.tanks:
+        sec.notes.append("tank contents in the sweep: solid weights at their upright centres with G raised by "
+                         "FSM/Δ (the free-surface-moment method); the condition's own levers are under its "
+                         "righting levers.")
     sec.notes.append(f"free-trim positions at {len(tr.heel)} heels, seen {o.camera.replace('astern', 'from astern')}"
                      f"; frames {o.sweep_size[0]}×{o.sweep_size[1]} px.")
     for k, h in enumerate(tr.heel):
@@ -326,7 +359,9 @@ def assumptions_section(rv: Review) -> Section:
         Quantity("density", "water density", rv.case.density, "t/m³", 3),
         Quantity("draft_datum", "draft datum", f"hull z axis at x = {h.x_ref:.3f} m on the centreline, above z = 0"),
         Quantity("curve_draft", "draft in GZ curves", "vertical depth of K = (x_ref, 0, 0) below the water"),
-        Quantity("fluids", "fluids", "free-surface moment: G raised by FSM/Δ (virtual rise, fluid GM)"),
+        Quantity("fluids", "fluids", "free-surface moment: G raised by FSM/Δ (virtual rise, fluid GM)"
+                 + ("; tanks: each condition's own fluid method (exact fluid shift with level free surfaces, "
+                    "or the FSM virtual rise), the other method shown beside it" if rv.tanks else "")),
         Quantity("trim", "trim in GZ curves", "free (displacement and longitudinal moment balanced at each heel)"),
         Quantity("criteria", "criteria set", rv.cset.name),
         Quantity("criteria_source", "criteria source", rv.cset.source),
@@ -339,8 +374,10 @@ def assumptions_section(rv: Review) -> Section:
 # ---------------------------------------------------------------------------- condition builders
 
 
-def weights_section(rv: Review, cr: ConditionRun) -> Section:
-    """The condition's weights and their totals."""
+def weights_section(rv: Review, cr: ConditionRun) -> Section | None:
+    """The condition's weights and their totals (None with tanks: the tanks section gives the weight groups)."""
+    if cr.inp.condition.tanks:
+        return None
     sec = A.condition_section(cr.inp.condition)
     sec.key, sec.title = "weights", "Weights"
     for sub in sec.sections:  # the totals, shown under the items rather than as an untitled part
@@ -348,30 +385,6 @@ def weights_section(rv: Review, cr: ConditionRun) -> Section:
         sec.notes += sub.notes
     sec.sections = []
     return sec
-
-
-def tanks_section(rv: Review, cr: ConditionRun) -> Section | None:
-    """The case's tanks as declared (shape, fluid density, permeability) and this condition's fills."""
-    spec = rv.case.spec
-    if spec is None or not spec.tanks:
-        return None
-    cs = next((c for c in spec.conditions if (c.name or "") == cr.inp.condition.name), None)
-    rows = []
-    for t in spec.tanks:
-        shape = "box" if t.box is not None else ("mesh " + str(t.mesh) if t.mesh is not None else f"body {t.body}")
-        fill = ""
-        if cs is not None:
-            for key, unit in (("fills", ""), ("soundings", " m"), ("volumes", " m³")):
-                v = getattr(cs, key).get(t.name)
-                if v is not None:
-                    fill = f"{key[:-1]} {v:g}{unit}"
-        rows.append({"tank": t.name, "shape": shape, "density": t.density, "permeability": t.permeability,
-                     "fill": fill or "—"})
-    cols = [Column("tank", "tank"), Column("shape", "shape"), Column("density", "fluid density", "t/m³", 3),
-            Column("permeability", "permeability", "", 3), Column("fill", "fill in this condition")]
-    return Section("tanks", "Tanks", tables=[Table("tanks", "", cols, rows)],
-                   notes=["tanks as declared in the case file; the free-surface effect counted in this report is "
-                          "the condition's free-surface moment."])
 
 
 def floating_section(rv: Review, cr: ConditionRun) -> Section:
@@ -387,7 +400,9 @@ def righting_section(rv: Review, cr: ConditionRun) -> Section:
     c, curve = cr.inp.condition, cr.curve
     trim = "free" if curve.free_trim else "fixed"
     sec = Section("righting", "Righting levers")
-    title = f"{rv.vessel}, {c.name}: GZ (Δ {c.displacement:.3f} t, KG fluid {c.kg_fluid:.3f} m, {trim} trim)"
+    load = (f"KG fluid {c.kg_fluid:.3f} m" if not (c.tanks and c.fluid == "exact")
+            else f"KG {c.kg:.3f} m, exact fluid shift")
+    title = f"{rv.vessel}, {c.name}: GZ (Δ {c.displacement:.3f} t, {load}, {trim} trim)"
     sec.figures.append(Figure("gz", title, "gz_curve", gz_data(curve, cr.sides, rv.vessel, cset=rv.cset,
                                                               report=cr.report, title=title),
                               caption="both sides drawn righting-positive; shaded: the areas the criteria ask for; "
@@ -426,12 +441,13 @@ def criteria_section(rv: Review, cr: ConditionRun) -> Section:
 
 #: Sections once per case, in report order; each ``f(review) -> Section | None``.
 CASE_BUILDERS: list[Callable[[Review], Section | None]] = [
-    vessel_section, hydrostatics_section, conditions_section, sweep_section, sections_comparison,
-    assumptions_section,
+    vessel_section, hydrostatics_section, conditions_section, P.kg_limits_section, sweep_section,
+    sections_comparison, assumptions_section,
 ]
 #: Sections per loading condition, in order; each ``f(review, condition_run) -> Section | None``.
 CONDITION_BUILDERS: list[Callable[[Review, ConditionRun], Section | None]] = [
-    weights_section, tanks_section, floating_section, righting_section, criteria_section,
+    weights_section, P.tanks_section, floating_section, P.damage_section, P.submergence_section,
+    righting_section, criteria_section, P.weather_section,
 ]
 
 

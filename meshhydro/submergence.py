@@ -144,9 +144,11 @@ def _bands(steps: list[SubmergenceStep], kg: float | None) -> tuple[list[str], d
     if kg is not None:
         neg = [s.draft for s in steps if s.gmt is not None and s.gmt < 0]
         data["negative_gm_drafts"] = neg
-        span = f"draft {neg[0]:.4f} m" if len(neg) == 1 else f"drafts {min(neg):.4f} to {max(neg):.4f} m"
-        notes.append(f"GMt negative for KG {kg:.4f} m at {span} (of those computed)"
-                     if neg else f"GMt positive for KG {kg:.4f} m at every computed draft")
+        if neg:
+            span = f"draft {neg[0]:.4f} m" if len(neg) == 1 else f"drafts {min(neg):.4f} to {max(neg):.4f} m"
+            notes.append(f"GMt negative for KG {kg:.4f} m at {span} (of those computed)")
+        else:
+            notes.append(f"GMt positive for KG {kg:.4f} m at every computed draft")
     return notes, data
 
 

@@ -52,22 +52,28 @@ def browser(tmp_path_factory):
             ctx.close()
 
 
-def _cli_report(tmp_path) -> tuple[str, int]:
-    """The real ``meshhydro report`` of a demo case (sweep frames and animation included), and its figure count."""
+def _cli_report(tmp_path, tanks: bool = False) -> tuple[str, int]:
+    """The real ``meshhydro report`` of a demo case (sweep frames and animation included), and its figure count;
+    ``tanks``: the tank case with its damage condition and KG limits instead (no sweep)."""
     from meshhydro.cli import main
 
     out = tmp_path / "review.html"
-    code = main(["report", os.path.join(R.ROOT, "meshes", "cases", "tern_sloop.toml"), "--out", str(out),
-                 "--heels", "0:90:2", "--sweep-heels", "0:30:15", "--size", "480x360", "--sections", "6", "--quiet"])
+    if tanks:
+        argv = ["report", os.path.join(R.ROOT, "meshes", "cases", "brindle_tanks.toml"), "--out", str(out),
+                "--heels", "0:90:5", "--no-sweep", "--kg-limits", "30:60:15", "--quiet"]
+    else:
+        argv = ["report", os.path.join(R.ROOT, "meshes", "cases", "tern_sloop.toml"), "--out", str(out),
+                "--heels", "0:90:2", "--sweep-heels", "0:30:15", "--size", "480x360", "--sections", "6", "--quiet"]
+    code = main(argv)
     assert code in (0, 1) and out.exists()
     text = out.read_text(encoding="utf-8")
     return text, text.count("<figure ")
 
 
-@pytest.mark.parametrize("which", ["hand", "real", "cli"])
+@pytest.mark.parametrize("which", ["hand", "real", "cli", "cli-tanks"])
 def test_report_in_chromium(browser, tmp_path, which):
-    if which == "cli":
-        text, n_fig = _cli_report(tmp_path)
+    if which.startswith("cli"):
+        text, n_fig = _cli_report(tmp_path, tanks=which == "cli-tanks")
     else:
         doc = R.hand_document() if which == "hand" else R.real_document()
         text = render_html(doc, draw=R.draw_hand if which == "hand" else figures.draw)

@@ -139,6 +139,8 @@ def test_report_command_writes_one_file(tmp_path, capsys):
     (["--out", "r.html", "--sections", "1"], "at least 2 station intervals"),
     (["--out", "r.html", "--heels", "0:200:5"], "--heels takes angles from 0 to 180"),
     (["--out", "r.html", "--sweep-condition", "nope"], "no condition named 'nope'"),
+    (["--out", "r.html", "--kg-limits", "0,10"], "displacements must be positive"),
+    (["--out", "r.html", "--kg-limits", "10:5:1"], "--kg-limits"),
 ])
 def test_report_bad_options(tmp_path, capsys, monkeypatch, argv, message):
     monkeypatch.chdir(tmp_path)
@@ -166,3 +168,170 @@ def test_outline_segments_chain_into_closed_loops():
     loops = largest_section_outline(cat)
     assert len(loops) == 2 and all(np.array_equal(p[0], p[-1]) for p in loops)
     assert sorted(np.sign([p[:, 0].mean() for p in loops])) == [-1.0, 1.0]
+
+
+# ---------------------------------------------------------------------------- tanks, damage, weather, KG limits,
+# a fully submerged load
+
+TANKS_CASE = os.path.join(ROOT, "meshes", "cases", "brindle_tanks.toml")
+
+
+def _sections(doc, cond_index):
+    return doc.section("conditions").sections[cond_index]
+
+
+@pytest.fixture(scope="module")
+def tanks_review():
+    rv = review.open_review(TANKS_CASE, FAST)
+    return rv, review.report_document(rv)
+
+
+def test_tank_case_sections(tanks_review):
+    rv, doc = tanks_review
+    assert [s.key for s in doc.sections] == ["vessel", "hydrostatics", "conditions", "assumptions"]  # no KG limits
+    keys = [[s.key for s in c.sections] for c in doc.section("conditions").sections]
+    # tanks: the weight groups replace the plain weights; damage only where a space is flooded; no weather
+    # criterion in the default set; nothing submerged
+    assert keys == [["tanks", "equilibrium", "righting", "criteria"]] * 2 + [
+        ["tanks", "equilibrium", "damage", "righting", "criteria"]]
+    # the other fluid method beside the deciding one, with a figure of both
+    for c, other in zip(doc.section("conditions").sections, ("FSM", "exact fluid", "FSM"), strict=True):
+        beside = c.sections[0].sections[0]
+        assert other in beside.title and beside.figures[0].view == "gz_curve"
+        assert len(beside.figures[0].data["sides"]) == 4  # two curves, both sides
+
+
+def test_tank_weight_groups_add_up(tanks_review):
+    # Arithmetic against the case file itself: items plus, per tank, fill x box volume x fluid density
+    # (a box tank's capacity is its closed-form volume, permeability 1).
+    import tomllib
+
+    rv, doc = tanks_review
+    with open(TANKS_CASE, "rb") as fh:
+        spec = tomllib.load(fh)
+    cond = spec["condition"][0]
+    items = sum(i["mass"] for i in cond["items"])
+    tanks = 0.0
+    for t in spec["tank"]:
+        (x0, y0, z0), (x1, y1, z1) = t["box"]
+        tanks += cond["fills"].get(t["name"], 0.0) * (x1 - x0) * (y1 - y0) * (z1 - z0) * t["density"]
+    sec = _sections(doc, 0).sections[0]
+    groups = next(t for t in sec.tables if t.key == "weight_groups")
+    total = sum(r["mass"] for r in groups.rows)
+    assert total == pytest.approx(items + tanks, rel=1e-9)
+    assert sum(r["mass"] for r in groups.rows if r["group"] == "tank") == pytest.approx(tanks, rel=1e-9)
+    values = {q.key: q.value for q in sec.values}
+    assert values["displacement"] == pytest.approx(items + tanks, rel=1e-9)
+    # KG fluid = KG + FSM/Δ (textbook virtual rise)
+    assert values["kg_fluid"] == pytest.approx(values["kg"] + values["fsm"] / values["displacement"], rel=1e-12)
+    fills = next(t for t in sec.tables if t.key == "tank_fills")
+    assert [r["full"] for r in fills.rows] == pytest.approx([100 * cond["fills"][t["name"]] for t in spec["tank"]])
+
+
+def test_damage_section(tanks_review):
+    rv, doc = tanks_review
+    dmg = _sections(doc, 2).sections[2]
+    assert dmg.key == "damage"
+    vals = {q.key: q.value for q in dmg.values}
+    cr = rv.runs[2]
+    pos = next(t for t in dmg.tables if t.key == "damaged_vs_intact")
+    assert [r["case"] for r in pos.rows] == ["damaged", "intact"]
+    under = [k for k in pos.rows[0] if k.startswith("opening:") and pos.rows[0][k] <= 0]
+    assert vals["survival"] == ("survives" if cr.report.passed and not under else "does NOT survive")
+    # flooding a starboard space heels the barge to starboard (heel + = starboard down, README)
+    assert pos.rows[0]["heel"] > 0.1 and abs(pos.rows[1]["heel"]) < 1e-6
+    assert "intact" in dmg.sections[0].title
+
+
+def test_tank_report_command(tmp_path, capsys):
+    out = tmp_path / "tanks.html"
+    code = _run("report", TANKS_CASE, "--out", str(out), "--heels", "0:60:10", "--no-sweep", "--quiet")
+    assert code in (0, 1) and out.exists()
+    text = out.read_text(encoding="utf-8")
+    assert "Weights and tanks" in text and "Damage: starboard void flooded" in text
+    assert "not resolved against the hull" not in capsys.readouterr().err
+
+
+@pytest.fixture(scope="module")
+def weather_review():
+    opts = review.ReviewOptions(heels=np.arange(0.0, 91.0, 5.0), sweep_heels=None, criteria="imo2008-weather",
+                                kg_limits=np.array([30.0, 60.0, 85.0]))
+    rv = review.open_review(BARGE_CASE, opts)
+    return rv, review.report_document(rv)
+
+
+def test_weather_section(weather_review):
+    rv, doc = weather_review
+    for c in doc.section("conditions").sections:
+        keys = [s.key for s in c.sections]
+        assert keys == ["weights", "equilibrium", "righting", "criteria", "weather"]
+        w = c.sections[-1].tables[0]
+        side = [col.key for col in w.columns][2]
+        # IS Code 2.3.2 (from memory): the gust lever is 1.5 times the steady wind lever
+        lw1 = next(r for r in w.rows if r["quantity"].startswith("steady wind lever"))[side]
+        lw2 = next(r for r in w.rows if r["quantity"].startswith("gust lever"))[side]
+        assert lw2 == pytest.approx(1.5 * lw1, rel=1e-12) and lw1 > 0
+        labels = [r["quantity"] for r in w.rows]
+        assert "area a" in labels and "area b" in labels and "windage area A" in labels and "lever Z" in labels
+
+
+def test_kg_limit_rows_match_the_command(weather_review, capsys):
+    import json
+
+    rv, doc = weather_review
+    sec = doc.section("kg_limits")
+    assert sec.figures[0].view == "kg_limits"
+    code = _run("kg-limits", BARGE_CASE, "--displacements", "30,60,85", "--set", "imo2008-weather", "--format",
+                "json")
+    assert code == 0
+    cli = json.loads(capsys.readouterr().out)["rows"]
+    assert sec.tables[0].rows == cli
+    svg = review_figure_svg(sec.figures[0])
+    assert svg.lstrip().startswith("<?xml") or "<svg" in svg[:400]
+
+
+def review_figure_svg(fig):
+    from meshhydro import figures
+
+    return figures.draw(fig)
+
+
+def test_fully_submerged_condition(tmp_path):
+    import trimesh
+
+    hull = meshhydro.load_hull(BARGE)
+    tm = trimesh.load(BARGE)
+    rho, kg = 1.025, 0.5
+    case = tmp_path / "sub.toml"
+    case.write_text(f'[hull]\nmesh = "{BARGE}"\nunits = "m"\n[water]\ndensity = {rho}\n[[condition]]\n'
+                    f'name = "neutral"\ndisplacement = {hull.total_volume * rho!r}\ncog = [6.0, 0.0, {kg}]\n',
+                    encoding="utf-8")
+    rv = review.open_review(str(case), review.ReviewOptions(heels=np.arange(0.0, 61.0, 10.0), sweep_heels=None))
+    doc = review.report_document(rv)
+    cond = doc.section("conditions").sections[0]
+    assert "submergence" in [s.key for s in cond.sections]
+    sub = cond.sections[[s.key for s in cond.sections].index("submergence")]
+    assert "no waterplane: weight stability only" in sub.notes
+    vals = {q.key: q.value for q in sub.values}
+    # the whole body's centroid from trimesh (an outside library); GM = KB - KG with no waterplane (textbook)
+    assert vals["kb"] == pytest.approx(tm.center_mass[2], abs=1e-9)
+    assert vals["gmt"] == pytest.approx(tm.center_mass[2] - kg, abs=1e-9)
+    assert sub.sections[0].figures[0].view == "submergence"
+    # the sequence ends fully under water, where KM = KB (no waterplane inertia; textbook)
+    last = sub.sections[0].tables[0].rows[-1]
+    assert last["submerged"] and last["awp"] == 0.0 and last["kmt"] == pytest.approx(tm.center_mass[2], abs=1e-9)
+
+
+def test_no_sweep_of_a_flooded_condition(tanks_review):
+    # the sweep floats the intact hull, so a damaged condition gets a note instead of pictures
+    import dataclasses
+
+    rv, _ = tanks_review
+    saved = rv.options
+    try:
+        rv.options = dataclasses.replace(saved, sweep_heels=np.array([0.0, 10.0]),
+                                         sweep_condition="starboard void flooded")
+        sec = review.sweep_section(rv)
+    finally:
+        rv.options = saved
+    assert sec.figures == [] and "flooded compartments" in sec.notes[0]

@@ -34,10 +34,15 @@ def _options(args: argparse.Namespace):
         raise InputError("--waterlines applies to --sections; give --sections N as well")
     if args.waterlines < 1:
         raise InputError(f"--waterlines {args.waterlines}: give at least 1 waterline interval")
+    kg_limits = None
+    if args.kg_limits is not None:
+        kg_limits = parse_range(args.kg_limits, "--kg-limits")
+        if kg_limits.min() <= 0:
+            raise InputError(f"--kg-limits {args.kg_limits}: displacements must be positive [t]")
     return ReviewOptions(heels=heels, drafts=drafts, criteria=args.set, sweep_heels=sweep,
                          sweep_condition=args.sweep_condition, sweep_size=parse_size(args.size or "800x600"),
                          camera=args.camera or "astern", stations=args.sections, waterlines=args.waterlines,
-                         direction=args.direction)
+                         direction=args.direction, kg_limits=kg_limits)
 
 
 def cmd_report(args: argparse.Namespace) -> int:
@@ -100,5 +105,8 @@ def register(sub: argparse._SubParsersAction) -> None:
     r.add_argument("--sections", type=int, metavar="N",
                    help="add the section-based (Simpson) comparison with N station intervals")
     r.add_argument("--waterlines", type=int, default=10, help="waterline intervals of --sections (default 10)")
+    r.add_argument("--kg-limits", metavar="START:STOP:STEP",
+                   help="add the KG-limit table and plot for the report's criteria set over these displacements "
+                        "[t] (as the kg-limits command)")
     r.add_argument("--quiet", action="store_true", help="no progress bars")
     r.set_defaults(func=cmd_report)
