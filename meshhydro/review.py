@@ -358,7 +358,8 @@ def assumptions_section(rv: Review) -> Section:
     sec.values = [
         Quantity("density", "water density", rv.case.density, "t/m³", 3),
         Quantity("draft_datum", "draft datum", f"hull z axis at x = {h.x_ref:.3f} m on the centreline, above z = 0"),
-        Quantity("curve_draft", "draft in GZ curves", "vertical depth of K = (x_ref, 0, 0) below the water"),
+        Quantity("curve_draft", "draft in GZ curves", "T as above at every heel (keel_depth: vertical depth of "
+                 "K = (x_ref, 0, 0) below the water)"),
         Quantity("fluids", "fluids", "free-surface moment: G raised by FSM/Δ (virtual rise, fluid GM)"
                  + ("; tanks: each condition's own fluid method (exact fluid shift with level free surfaces, "
                     "or the FSM virtual rise), the other method shown beside it" if rv.tanks else "")),
