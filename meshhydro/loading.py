@@ -36,6 +36,7 @@ Example::
 from __future__ import annotations
 
 import math
+import os
 from dataclasses import dataclass, field, replace
 from typing import Any
 
@@ -239,7 +240,7 @@ class Case:
         (``progress(stage, done, total)`` called as reading and checking advance)."""
         return load_hull(self.mesh, units=self.units, forward=self.forward, up=self.up, offset=self.offset,
                          flip_inside_out=self.flip_inside_out, merge_overlaps=self.merge_overlaps,
-                         x_ref=self.x_ref, name=self.name, x_aft=self.x_aft, x_fore=self.x_fore,
+                         x_ref=self.x_ref, name=self.name or os.path.relpath(self.mesh), x_aft=self.x_aft, x_fore=self.x_fore,
                          close_holes=self.close_holes, progress=progress)
 
 
