@@ -75,8 +75,7 @@ class Evaluator:
         self.K = np.array([hull.x_ref, 0.0, 0.0])
         self.count = 0
         self.L = max(hull.length, tol.TINY_LENGTH)
-        #: hull vertices relative to K (n, 3) [m], for the extent of the hull along a normal
-        self.rel = self.prep.vertices + (self.prep.origin - self.K)
+        self._k_off = self.prep.origin - self.K  # (3,) [m]: centred mesh frame to K
 
     def state(self, depth: float, heel: float, trim: float) -> State:
         n = up_vector(heel, trim)
@@ -87,9 +86,21 @@ class Evaluator:
         return State(float(depth), float(heel), float(trim), c)
 
     def depth_range(self, heel: float, trim: float) -> tuple[float, float]:
-        """Least and largest depth [m] of K at which the plane touches the hull."""
-        h = self.rel @ up_vector(heel, trim)
-        return float(h.min()), float(h.max())
+        """A bracket [m] on the depth of K at which the plane touches the hull: every vertex lies in it.
+
+        From the kernel's block bounds (:func:`meshhydro.kernel.extent_along`), widened by the
+        kernel's rounding allowance, so no per-attitude scan of every vertex; a safe bracket for
+        the volume search (V = 0 at the lower end, the whole hull at the upper end).
+        """
+        n = up_vector(heel, trim)
+        lo, hi = kernel.extent_along(self.prep, n)
+        off = float(n @ self.K)
+        return lo - off, hi - off
+
+    def top_depth(self, heel: float, trim: float) -> float:
+        """Exact depth [m] of K at which the plane touches the hull's highest vertex."""
+        n = up_vector(heel, trim)
+        return float((self.prep.vertices @ n).max() + float(self._k_off @ n))
 
 
 def residuals(st: State, v0: float, load: Load, L: float) -> np.ndarray:
