@@ -382,22 +382,61 @@ def bracketed_trim(ev: Evaluator, v0: float, load: Load, heel: float, t0: float)
     return res
 
 
-def _guess(ev: Evaluator, v0: float, heel: float, hist: list[State]) -> State:
-    """Starting state at ``heel``: linear extrapolation of the two previous solutions."""
-    if len(hist) >= 2:
-        a, b = hist[-2], hist[-1]
-        w = (heel - b.heel) / (b.heel - a.heel) if b.heel != a.heel else 0.0
-        d0 = b.depth + w * (b.depth - a.depth)
-        t0 = b.trim + w * (b.trim - a.trim)
-    else:
-        d0, t0 = hist[-1].depth, hist[-1].trim
-    lo, hi = ev.depth_range(heel, t0)
-    if not (lo < d0 < hi):
-        return solve_volume(ev, v0, heel, t0)
+def _tangent(ev: Evaluator, v0: float, load: Load, st: State, free_trim: bool) -> np.ndarray:
+    """(d depth / d heel [m/deg], d trim / d heel [-]) along the solution path at a solved state, from
+    the exact Jacobian (implicit function theorem; trim free or held); no kernel evaluation."""
+    J = jacobian(st, v0, load, ev.K, ev.L)
+    rows = [0, 2] if free_trim else [0]
     try:
-        return ev.state(d0, heel, t0)
+        t = np.linalg.solve(J[np.ix_(rows, rows)], -J[rows, 1])
+    except np.linalg.LinAlgError:
+        return np.zeros(2)
+    if not np.all(np.isfinite(t)):
+        return np.zeros(2)
+    return np.array([math.radians(float(t[0])), float(t[1]) if free_trim else 0.0])
+
+
+def _extrapolate(ev: Evaluator, v0: float, load: Load, hist: list[State], tangents: dict[int, np.ndarray],
+                 heel: float, free_trim: bool) -> tuple[float, float]:
+    """(depth [m], trim [deg]) at ``heel`` [deg] predicted from the last solved state of ``hist``: along
+    the path's tangent there, with the curvature from the change of tangent since the state before.
+    The trim is held exactly while the last three solved trims are equal (a symmetric hull keeps
+    trim 0, free of rounding in the tangent) and always when it is not free."""
+    b = hist[-1]
+
+    def tan(st: State) -> np.ndarray:
+        if id(st) not in tangents:
+            tangents[id(st)] = _tangent(ev, v0, load, st, free_trim)
+        return tangents[id(st)]
+
+    h = heel - b.heel
+    q = np.array([b.depth, b.trim]) + h * tan(b)
+    if len(hist) >= 2 and abs(b.heel - hist[-2].heel) > tol.SAME_ANGLE:
+        a = hist[-2]
+        q += 0.5 * h * h * (tan(b) - tan(a)) / (b.heel - a.heel)
+    if not free_trim or all(st.trim == b.trim for st in hist[-3:]):
+        q[1] = b.trim
+    return float(q[0]), float(q[1])
+
+
+def _guess(ev: Evaluator, v0: float, load: Load, heel: float, hist: list[State], tangents: dict[int, np.ndarray],
+           free_trim: bool) -> State:
+    """Starting state at ``heel``: extrapolated from the previous solutions (:func:`_extrapolate`).
+
+    The guessed plane is evaluated directly; where it misses the hull (no waterplane, or nothing or
+    everything immersed) or reaches an open rim, the volume is solved at the guessed trim instead.
+    """
+    d0, t0 = _extrapolate(ev, v0, load, hist, tangents, heel, free_trim)
+    if abs(t0) > tol.TRIM_LIMIT:
+        t0 = hist[-1].trim
+    try:
+        st = ev.state(d0, heel, t0)
     except OpenRimError:
         return solve_volume(ev, v0, heel, t0)
+    c = st.cut
+    if not c.waterplane_area > 0:
+        return solve_volume(ev, v0, heel, t0)
+    return st
 
 
 def step_angles(ev: Evaluator, v0: float, load: Load, heels: np.ndarray, start: State, free_trim: bool,
@@ -411,17 +450,18 @@ def step_angles(ev: Evaluator, v0: float, load: Load, heels: np.ndarray, start: 
     """
     out: list[tuple[State, int]] = []
     hist: list[State] = [start]
+    tangents: dict[int, np.ndarray] = {}  # by id() of a state held in hist
     for h in heels:
         before = ev.count
         if abs(h - start.heel) < tol.SAME_ANGLE:
             st = start
         elif stop_at_rim:
             try:
-                st = _solve_heel(ev, v0, load, float(h), hist, free_trim)
+                st = _solve_heel(ev, v0, load, float(h), hist, free_trim, tangents)
             except OpenRimError:
                 break
         else:
-            st = _solve_heel(ev, v0, load, float(h), hist, free_trim)
+            st = _solve_heel(ev, v0, load, float(h), hist, free_trim, tangents)
         hist.append(st)
         out.append((st, ev.count - before))
         if progress is not None:
@@ -429,9 +469,10 @@ def step_angles(ev: Evaluator, v0: float, load: Load, heels: np.ndarray, start: 
     return out
 
 
-def _solve_heel(ev: Evaluator, v0: float, load: Load, h: float, hist: list[State], free_trim: bool) -> State:
+def _solve_heel(ev: Evaluator, v0: float, load: Load, h: float, hist: list[State], free_trim: bool,
+                tangents: dict[int, np.ndarray]) -> State:
     """One heel of :func:`step_angles` (continued from ``hist``)."""
-    guess = _guess(ev, v0, h, hist)
+    guess = _guess(ev, v0, load, h, hist, tangents, free_trim)
     res = newton(ev, v0, load, guess, free_heel=False, free_trim=free_trim)
     if not res.converged and free_trim:
         res = bracketed_trim(ev, v0, load, h, hist[-1].trim)
