@@ -171,10 +171,10 @@ class Scene:
         pv = self.pv
         p = self.plotter
         t = self.trace
-        mesh = self.base.copy()
+        mesh = self.base.copy(deep=False)  # the faces are shared; only the points move
         mesh.points = self._to_earth(k, self.hull.vertices)
-        below = mesh.clip(normal=(0, 0, 1), origin=(0, 0, 0), invert=True)
-        above = mesh.clip(normal=(0, 0, 1), origin=(0, 0, 0), invert=False)
+        # one clip gives both parts (the same surfaces as two clips with and without invert)
+        below, above = mesh.clip(normal=(0, 0, 1), origin=(0, 0, 0), invert=True, return_clipped=True)
         alpha = 1.0 if self.camera == "astern" else 0.72
         if below.n_points:
             p.add_mesh(below, color=COLOURS["below"], name="below", smooth_shading=False, render=False,
