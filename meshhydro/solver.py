@@ -129,20 +129,24 @@ def jacobian(st: State, v0: float, load: Load, K: np.ndarray, L: float) -> np.nd
     del_th = np.array([-math.sin(th), math.sin(ph) * math.cos(th), math.cos(ph) * math.cos(th)])
     FK = F - K
     P = c.inertia_tensor + A * np.outer(F, FK)
-    out = np.zeros((3, 3))
     bg = B - g
-    zero = np.zeros(3)
-    for j, (ds, dn) in enumerate(((1.0, zero), (0.0, dn_phi), (0.0, dn_th))):
-        dV = A * ds - dn @ (A * FK)
-        dM = A * F * ds - P @ dn
-        dB = (dM - B * dV) / V
-        if j:
-            dB = dB - dg[:, j - 1]
-        out[0, j] = dV / v0
-        d_et = det_phi if j == 1 else zero
-        d_el = del_phi if j == 1 else (del_th if j == 2 else zero)
-        out[1, j] = (dB @ et + bg @ d_et) / L
-        out[2, j] = (dB @ el + bg @ d_el) / L
+    # columns: depth [m], heel [rad], trim [rad]; Dn (3, 3) the change of the plane normal per unknown
+    Dn = np.zeros((3, 3))
+    Dn[:, 1], Dn[:, 2] = dn_phi, dn_th
+    dV = -(A * FK) @ Dn
+    dV[0] += A
+    dM = -(P @ Dn)
+    dM[:, 0] += A * F
+    dB = (dM - np.outer(B, dV)) / V
+    dB[:, 1:] -= dg
+    Det = np.zeros((3, 3))
+    Det[:, 1] = det_phi
+    Del = np.zeros((3, 3))
+    Del[:, 1], Del[:, 2] = del_phi, del_th
+    out = np.empty((3, 3))
+    out[0] = dV / v0
+    out[1] = (et @ dB + bg @ Det) / L
+    out[2] = (el @ dB + bg @ Del) / L
     return out
 
 
