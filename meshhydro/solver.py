@@ -274,12 +274,17 @@ def solve_volume(ev: Evaluator, v0: float, heel: float, trim: float, start: floa
 
 @dataclass(frozen=True, eq=False)
 class NewtonResult:
-    """Outcome of :func:`newton`: the last state, whether it met the tolerances, steps and residuals (3,)."""
+    """Outcome of :func:`newton`: the last state, whether it met the tolerances, steps and residuals (3,).
+
+    ``jacobian`` (3, 3) is the full Jacobian (:func:`jacobian`) at the start of the last step taken,
+    None when no step was taken; a predictor may use it as the path's slope near the result.
+    """
 
     state: State
     converged: bool
     iterations: int
     residual: np.ndarray
+    jacobian: np.ndarray | None = None
 
 
 def _limited_step(ev: Evaluator, dq: np.ndarray, rows: list[int]) -> np.ndarray:
@@ -331,10 +336,12 @@ def newton(ev: Evaluator, v0: float, load: Load, start: State, *, free_heel: boo
     rows = [0] + ([1] if free_heel else []) + ([2] if free_trim else [])
     st = start
     r = residuals(st, v0, load, ev.L)
+    J = None
     for it in range(1, max_iter + 1):
         if converged(r, rows):
-            return NewtonResult(st, True, it - 1, r)
-        Jf = jacobian(st, v0, load, ev.K, ev.L)[np.ix_(rows, rows)]
+            return NewtonResult(st, True, it - 1, r, J)
+        J = jacobian(st, v0, load, ev.K, ev.L)
+        Jf = J[np.ix_(rows, rows)]
         rr = r[rows]
         dq = _limited_step(ev, _newton_direction(Jf, rr), rows)
         accepted = _backtrack(ev, v0, load, st, dq, rows, float(rr @ rr))
@@ -343,7 +350,7 @@ def newton(ev: Evaluator, v0: float, load: Load, start: State, *, free_heel: boo
             cand = solve_volume(ev, v0, st.heel, st.trim, st.depth)
             accepted = (cand, residuals(cand, v0, load, ev.L))
         st, r = accepted
-    return NewtonResult(st, converged(r, rows), max_iter, r)
+    return NewtonResult(st, converged(r, rows), max_iter, r, J)
 
 
 # ---------------------------------------------------------------------------- angle stepping
@@ -386,10 +393,9 @@ def bracketed_trim(ev: Evaluator, v0: float, load: Load, heel: float, t0: float)
     return res
 
 
-def _tangent(ev: Evaluator, v0: float, load: Load, st: State, free_trim: bool) -> np.ndarray:
-    """(d depth / d heel [m/deg], d trim / d heel [-]) along the solution path at a solved state, from
-    the exact Jacobian (implicit function theorem; trim free or held); no kernel evaluation."""
-    J = jacobian(st, v0, load, ev.K, ev.L)
+def _tangent(J: np.ndarray, free_trim: bool) -> np.ndarray:
+    """(d depth / d heel [m/deg], d trim / d heel [-]) along the solution path from the Jacobian (3, 3)
+    of :func:`residuals` at (or next to) a solved state (implicit function theorem; trim free or held)."""
     rows = [0, 2] if free_trim else [0]
     try:
         t = np.linalg.solve(J[np.ix_(rows, rows)], -J[rows, 1])
@@ -410,7 +416,7 @@ def _extrapolate(ev: Evaluator, v0: float, load: Load, hist: list[State], tangen
 
     def tan(st: State) -> np.ndarray:
         if id(st) not in tangents:
-            tangents[id(st)] = _tangent(ev, v0, load, st, free_trim)
+            tangents[id(st)] = _tangent(jacobian(st, v0, load, ev.K, ev.L), free_trim)
         return tangents[id(st)]
 
     h = heel - b.heel
@@ -484,6 +490,8 @@ def _solve_heel(ev: Evaluator, v0: float, load: Load, h: float, hist: list[State
         raise NotConvergedError(
             f"free-trim position not found at heel {h:g}° (volume residual {res.residual[0]:.2e}, "
             f"trim lever {abs(res.residual[2]) * ev.L:.2e} m)")
+    if res.jacobian is not None:  # taken next to the result: the next heel's predictor reuses it
+        tangents[id(res.state)] = _tangent(res.jacobian, free_trim)
     return res.state
 
 
