@@ -171,19 +171,22 @@ class Scene:
         pv = self.pv
         p = self.plotter
         t = self.trace
-        mesh = self.base.copy()
+        mesh = self.base.copy(deep=False)  # the faces are shared; only the points move
         mesh.points = self._to_earth(k, self.hull.vertices)
-        below = mesh.clip(normal=(0, 0, 1), origin=(0, 0, 0), invert=True)
-        above = mesh.clip(normal=(0, 0, 1), origin=(0, 0, 0), invert=False)
+        # one clip gives both parts (the same surfaces as two clips with and without invert)
+        below, above = mesh.clip(normal=(0, 0, 1), origin=(0, 0, 0), invert=True, return_clipped=True)
         alpha = 1.0 if self.camera == "astern" else 0.72
+        # an opaque closed hull seen from outside hides every back face behind a front face: skipping
+        # them halves the drawing and leaves the picture as it is (an open or see-through hull draws all)
+        cull = "back" if alpha == 1.0 and self.hull.report.closed else None
         if below.n_points:
             p.add_mesh(below, color=COLOURS["below"], name="below", smooth_shading=False, render=False,
-                       opacity=alpha)
+                       opacity=alpha, culling=cull)
         else:
             p.remove_actor("below", render=False)
         if above.n_points:
             p.add_mesh(above, color=COLOURS["above"], name="above", smooth_shading=False, render=False,
-                       opacity=alpha)
+                       opacity=alpha, culling=cull)
         else:
             p.remove_actor("above", render=False)
         cut = self.hull.cut(self.K + t.keel_depth[k] * t.up[k], t.up[k], segments=True)
@@ -235,7 +238,10 @@ class Scene:
                    "GZ lever (orange)\n" + CAMERA_NOTE[self.camera],
                    position="lower_left", font_size=max(6, fs - 2), color="#444444", name="legend", render=False)
         p.render()
-        p.screenshot(path)
+        from PIL import Image
+
+        # the same pixels as p.screenshot(path); a light PNG compression writes (and reads back) faster
+        Image.fromarray(p.screenshot(None, return_img=True)).save(path, format="PNG", compress_level=1)
 
     def _letters(self, shown: list[tuple[str, np.ndarray]], rad: float) -> None:
         """The letters G, B, M beside their marks (offset up and to the left on the picture)."""

@@ -75,8 +75,7 @@ class Evaluator:
         self.K = np.array([hull.x_ref, 0.0, 0.0])
         self.count = 0
         self.L = max(hull.length, tol.TINY_LENGTH)
-        #: hull vertices relative to K (n, 3) [m], for the extent of the hull along a normal
-        self.rel = self.prep.vertices + (self.prep.origin - self.K)
+        self._k_off = self.prep.origin - self.K  # (3,) [m]: centred mesh frame to K
 
     def state(self, depth: float, heel: float, trim: float) -> State:
         n = up_vector(heel, trim)
@@ -87,9 +86,21 @@ class Evaluator:
         return State(float(depth), float(heel), float(trim), c)
 
     def depth_range(self, heel: float, trim: float) -> tuple[float, float]:
-        """Least and largest depth [m] of K at which the plane touches the hull."""
-        h = self.rel @ up_vector(heel, trim)
-        return float(h.min()), float(h.max())
+        """A bracket [m] on the depth of K at which the plane touches the hull: every vertex lies in it.
+
+        From the kernel's block bounds (:func:`meshhydro.kernel.extent_along`), widened by the
+        kernel's rounding allowance, so no per-attitude scan of every vertex; a safe bracket for
+        the volume search (V = 0 at the lower end, the whole hull at the upper end).
+        """
+        n = up_vector(heel, trim)
+        lo, hi = kernel.extent_along(self.prep, n)
+        off = float(n @ self.K)
+        return lo - off, hi - off
+
+    def top_depth(self, heel: float, trim: float) -> float:
+        """Exact depth [m] of K at which the plane touches the hull's highest vertex."""
+        n = up_vector(heel, trim)
+        return float((self.prep.vertices @ n).max() + float(self._k_off @ n))
 
 
 def residuals(st: State, v0: float, load: Load, L: float) -> np.ndarray:
@@ -118,20 +129,24 @@ def jacobian(st: State, v0: float, load: Load, K: np.ndarray, L: float) -> np.nd
     del_th = np.array([-math.sin(th), math.sin(ph) * math.cos(th), math.cos(ph) * math.cos(th)])
     FK = F - K
     P = c.inertia_tensor + A * np.outer(F, FK)
-    out = np.zeros((3, 3))
     bg = B - g
-    zero = np.zeros(3)
-    for j, (ds, dn) in enumerate(((1.0, zero), (0.0, dn_phi), (0.0, dn_th))):
-        dV = A * ds - dn @ (A * FK)
-        dM = A * F * ds - P @ dn
-        dB = (dM - B * dV) / V
-        if j:
-            dB = dB - dg[:, j - 1]
-        out[0, j] = dV / v0
-        d_et = det_phi if j == 1 else zero
-        d_el = del_phi if j == 1 else (del_th if j == 2 else zero)
-        out[1, j] = (dB @ et + bg @ d_et) / L
-        out[2, j] = (dB @ el + bg @ d_el) / L
+    # columns: depth [m], heel [rad], trim [rad]; Dn (3, 3) the change of the plane normal per unknown
+    Dn = np.zeros((3, 3))
+    Dn[:, 1], Dn[:, 2] = dn_phi, dn_th
+    dV = -(A * FK) @ Dn
+    dV[0] += A
+    dM = -(P @ Dn)
+    dM[:, 0] += A * F
+    dB = (dM - np.outer(B, dV)) / V
+    dB[:, 1:] -= dg
+    Det = np.zeros((3, 3))
+    Det[:, 1] = det_phi
+    Del = np.zeros((3, 3))
+    Del[:, 1], Del[:, 2] = del_phi, del_th
+    out = np.empty((3, 3))
+    out[0] = dV / v0
+    out[1] = (et @ dB + bg @ Det) / L
+    out[2] = (el @ dB + bg @ Del) / L
     return out
 
 
@@ -259,12 +274,17 @@ def solve_volume(ev: Evaluator, v0: float, heel: float, trim: float, start: floa
 
 @dataclass(frozen=True, eq=False)
 class NewtonResult:
-    """Outcome of :func:`newton`: the last state, whether it met the tolerances, steps and residuals (3,)."""
+    """Outcome of :func:`newton`: the last state, whether it met the tolerances, steps and residuals (3,).
+
+    ``jacobian`` (3, 3) is the full Jacobian (:func:`jacobian`) at the start of the last step taken,
+    None when no step was taken; a predictor may use it as the path's slope near the result.
+    """
 
     state: State
     converged: bool
     iterations: int
     residual: np.ndarray
+    jacobian: np.ndarray | None = None
 
 
 def _limited_step(ev: Evaluator, dq: np.ndarray, rows: list[int]) -> np.ndarray:
@@ -316,10 +336,12 @@ def newton(ev: Evaluator, v0: float, load: Load, start: State, *, free_heel: boo
     rows = [0] + ([1] if free_heel else []) + ([2] if free_trim else [])
     st = start
     r = residuals(st, v0, load, ev.L)
+    J = None
     for it in range(1, max_iter + 1):
         if converged(r, rows):
-            return NewtonResult(st, True, it - 1, r)
-        Jf = jacobian(st, v0, load, ev.K, ev.L)[np.ix_(rows, rows)]
+            return NewtonResult(st, True, it - 1, r, J)
+        J = jacobian(st, v0, load, ev.K, ev.L)
+        Jf = J[np.ix_(rows, rows)]
         rr = r[rows]
         dq = _limited_step(ev, _newton_direction(Jf, rr), rows)
         accepted = _backtrack(ev, v0, load, st, dq, rows, float(rr @ rr))
@@ -328,7 +350,7 @@ def newton(ev: Evaluator, v0: float, load: Load, start: State, *, free_heel: boo
             cand = solve_volume(ev, v0, st.heel, st.trim, st.depth)
             accepted = (cand, residuals(cand, v0, load, ev.L))
         st, r = accepted
-    return NewtonResult(st, converged(r, rows), max_iter, r)
+    return NewtonResult(st, converged(r, rows), max_iter, r, J)
 
 
 # ---------------------------------------------------------------------------- angle stepping
@@ -371,22 +393,60 @@ def bracketed_trim(ev: Evaluator, v0: float, load: Load, heel: float, t0: float)
     return res
 
 
-def _guess(ev: Evaluator, v0: float, heel: float, hist: list[State]) -> State:
-    """Starting state at ``heel``: linear extrapolation of the two previous solutions."""
-    if len(hist) >= 2:
-        a, b = hist[-2], hist[-1]
-        w = (heel - b.heel) / (b.heel - a.heel) if b.heel != a.heel else 0.0
-        d0 = b.depth + w * (b.depth - a.depth)
-        t0 = b.trim + w * (b.trim - a.trim)
-    else:
-        d0, t0 = hist[-1].depth, hist[-1].trim
-    lo, hi = ev.depth_range(heel, t0)
-    if not (lo < d0 < hi):
-        return solve_volume(ev, v0, heel, t0)
+def _tangent(J: np.ndarray, free_trim: bool) -> np.ndarray:
+    """(d depth / d heel [m/deg], d trim / d heel [-]) along the solution path from the Jacobian (3, 3)
+    of :func:`residuals` at (or next to) a solved state (implicit function theorem; trim free or held)."""
+    rows = [0, 2] if free_trim else [0]
     try:
-        return ev.state(d0, heel, t0)
+        t = np.linalg.solve(J[np.ix_(rows, rows)], -J[rows, 1])
+    except np.linalg.LinAlgError:
+        return np.zeros(2)
+    if not np.all(np.isfinite(t)):
+        return np.zeros(2)
+    return np.array([math.radians(float(t[0])), float(t[1]) if free_trim else 0.0])
+
+
+def _extrapolate(ev: Evaluator, v0: float, load: Load, hist: list[State], tangents: dict[int, np.ndarray],
+                 heel: float, free_trim: bool) -> tuple[float, float]:
+    """(depth [m], trim [deg]) at ``heel`` [deg] predicted from the last solved state of ``hist``: along
+    the path's tangent there, with the curvature from the change of tangent since the state before.
+    The trim is held exactly while the last three solved trims are equal (a symmetric hull keeps
+    trim 0, free of rounding in the tangent) and always when it is not free."""
+    b = hist[-1]
+
+    def tan(st: State) -> np.ndarray:
+        if id(st) not in tangents:
+            tangents[id(st)] = _tangent(jacobian(st, v0, load, ev.K, ev.L), free_trim)
+        return tangents[id(st)]
+
+    h = heel - b.heel
+    q = np.array([b.depth, b.trim]) + h * tan(b)
+    if len(hist) >= 2 and abs(b.heel - hist[-2].heel) > tol.SAME_ANGLE:
+        a = hist[-2]
+        q += 0.5 * h * h * (tan(b) - tan(a)) / (b.heel - a.heel)
+    if not free_trim or all(st.trim == b.trim for st in hist[-3:]):
+        q[1] = b.trim
+    return float(q[0]), float(q[1])
+
+
+def _guess(ev: Evaluator, v0: float, load: Load, heel: float, hist: list[State], tangents: dict[int, np.ndarray],
+           free_trim: bool) -> State:
+    """Starting state at ``heel``: extrapolated from the previous solutions (:func:`_extrapolate`).
+
+    The guessed plane is evaluated directly; where it misses the hull (no waterplane, or nothing or
+    everything immersed) or reaches an open rim, the volume is solved at the guessed trim instead.
+    """
+    d0, t0 = _extrapolate(ev, v0, load, hist, tangents, heel, free_trim)
+    if abs(t0) > tol.TRIM_LIMIT:
+        t0 = hist[-1].trim
+    try:
+        st = ev.state(d0, heel, t0)
     except OpenRimError:
         return solve_volume(ev, v0, heel, t0)
+    c = st.cut
+    if not c.waterplane_area > 0:
+        return solve_volume(ev, v0, heel, t0)
+    return st
 
 
 def step_angles(ev: Evaluator, v0: float, load: Load, heels: np.ndarray, start: State, free_trim: bool,
@@ -400,17 +460,18 @@ def step_angles(ev: Evaluator, v0: float, load: Load, heels: np.ndarray, start: 
     """
     out: list[tuple[State, int]] = []
     hist: list[State] = [start]
+    tangents: dict[int, np.ndarray] = {}  # by id() of a state held in hist
     for h in heels:
         before = ev.count
         if abs(h - start.heel) < tol.SAME_ANGLE:
             st = start
         elif stop_at_rim:
             try:
-                st = _solve_heel(ev, v0, load, float(h), hist, free_trim)
+                st = _solve_heel(ev, v0, load, float(h), hist, free_trim, tangents)
             except OpenRimError:
                 break
         else:
-            st = _solve_heel(ev, v0, load, float(h), hist, free_trim)
+            st = _solve_heel(ev, v0, load, float(h), hist, free_trim, tangents)
         hist.append(st)
         out.append((st, ev.count - before))
         if progress is not None:
@@ -418,9 +479,10 @@ def step_angles(ev: Evaluator, v0: float, load: Load, heels: np.ndarray, start: 
     return out
 
 
-def _solve_heel(ev: Evaluator, v0: float, load: Load, h: float, hist: list[State], free_trim: bool) -> State:
+def _solve_heel(ev: Evaluator, v0: float, load: Load, h: float, hist: list[State], free_trim: bool,
+                tangents: dict[int, np.ndarray]) -> State:
     """One heel of :func:`step_angles` (continued from ``hist``)."""
-    guess = _guess(ev, v0, h, hist)
+    guess = _guess(ev, v0, load, h, hist, tangents, free_trim)
     res = newton(ev, v0, load, guess, free_heel=False, free_trim=free_trim)
     if not res.converged and free_trim:
         res = bracketed_trim(ev, v0, load, h, hist[-1].trim)
@@ -428,6 +490,8 @@ def _solve_heel(ev: Evaluator, v0: float, load: Load, h: float, hist: list[State
         raise NotConvergedError(
             f"free-trim position not found at heel {h:g}° (volume residual {res.residual[0]:.2e}, "
             f"trim lever {abs(res.residual[2]) * ev.L:.2e} m)")
+    if res.jacobian is not None:  # taken next to the result: the next heel's predictor reuses it
+        tangents[id(res.state)] = _tangent(res.jacobian, free_trim)
     return res.state
 
 

@@ -42,8 +42,7 @@ def check_clearance(clearance: float) -> float:
 
 def state_at(ev: Evaluator, heel: float, trim: float, clearance: float) -> State:
     """The fully submerged state at an attitude [deg]: the body's top ``clearance`` [m] under the water."""
-    _, hi = ev.depth_range(heel, trim)
-    return ev.state(hi + clearance, heel, trim)
+    return ev.state(ev.top_depth(heel, trim) + clearance, heel, trim)
 
 
 def attitude_of(up: np.ndarray) -> tuple[float, float]:

@@ -140,9 +140,10 @@ def animated_gif(paths: Sequence[str], out: str, *, frame_ms: int = 350, bounce:
     """GIF of the frames (forth and back when ``bounce``)."""
     from PIL import Image
 
-    ims = [Image.open(p).convert("RGB") for p in paths]
-    seq = ims + ims[-2:0:-1] if bounce and len(ims) > 2 else ims
-    pal = [im.quantize(colors=255, method=Image.Quantize.MEDIANCUT) for im in seq]
+    # each frame is quantized once; the return leg of a bounce repeats the same images
+    pal = [Image.open(p).convert("RGB").quantize(colors=255, method=Image.Quantize.MEDIANCUT) for p in paths]
+    if bounce and len(pal) > 2:
+        pal = pal + pal[-2:0:-1]
     pal[0].save(out, format="GIF", save_all=True, append_images=pal[1:], duration=frame_ms, loop=0, disposal=2)
 
 

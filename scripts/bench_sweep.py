@@ -2,7 +2,9 @@
 """Benchmark: a 19-frame heel sweep (0-90° in 5°) of a hull of about 200k faces.
 
 Frames, contact sheet and GIF at 960x720, off-screen. Prints the split between solving
-(free-trim positions) and rendering. Floor: at most 30 s in all on this machine.
+(free-trim positions) and rendering, wall and CPU time (this process; the off-screen
+renderer runs in it). Floor (issue 14): at most 6 s in all; the last line gives the
+ratio of the total to it (at most 1 meets it).
 """
 from __future__ import annotations
 
@@ -26,6 +28,8 @@ def main() -> int:
     v, f = wigley(20.0, 4.0, 1.2, depth=2.4, stations=400, waterlines=110, above=12)
     hull = load_hull(trimesh.Trimesh(v, f, process=False), x_ref=0.0)
     disp = hull.hydrostatics(1.0).displacement
+    print(f"load average {os.getloadavg()[0]:.2f} at start")
+    c0 = time.process_time()
     t0 = time.perf_counter()
     tr = heel_trace(hull, disp, (0.0, 0.0, 1.1), np.arange(0.0, 91.0, 5.0))
     t_solve = time.perf_counter() - t0
@@ -36,11 +40,13 @@ def main() -> int:
                     timings=timings)
         t_out = time.perf_counter() - t1
     total = t_solve + t_out
+    cpu = time.process_time() - c0
     print(f"hull faces            {len(hull.faces)}")
     print(f"solve 19 angles       {t_solve:7.2f} s")
     print(f"render 19 frames      {timings.get('render', 0):7.2f} s")
     print(f"sheet + GIF           {timings.get('sheet_gif', 0):7.2f} s")
-    print(f"total                 {total:7.2f} s   (floor 30 s: {'met' if total <= 30 else 'NOT met'})")
+    print(f"total                 {total:7.2f} s   CPU {cpu:.2f} s   ratio to the 6 s floor {total / 6.0:.2f}"
+          f" ({'met' if total <= 6.0 else 'NOT met'})")
     return 0
 
 
