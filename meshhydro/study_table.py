@@ -14,7 +14,7 @@ from typing import Any, Sequence
 
 from .criteria import CAUTION
 from .errors import InputError
-from .output import write_atomic
+from .output import csv_number, write_atomic
 
 __all__ = ["TEXT_COLUMNS", "read_results", "write_results", "RESULTS_CSV", "RESULTS_PARQUET"]
 
@@ -26,7 +26,7 @@ RESULTS_PARQUET = "results.parquet"
 def _cell(col: str, v: Any) -> str:
     if v is None:
         return ""
-    return str(v) if col in TEXT_COLUMNS else repr(float(v))
+    return str(v) if col in TEXT_COLUMNS else csv_number(v)  # 12 significant digits; Parquet keeps full precision
 
 
 def _csv_text(rows: Sequence[dict[str, Any]], cols: Sequence[str]) -> str:
