@@ -11,7 +11,6 @@ Public: :class:`CaseInput`, :func:`from_case`, :func:`from_mesh`, :func:`choose_
 """
 from __future__ import annotations
 
-import dataclasses
 import os
 from dataclasses import dataclass
 from typing import Any, Callable, Sequence
@@ -31,7 +30,6 @@ from .hydrostatics import FIELDS, UNITS
 from .loading import Condition, Opening, condition, read_case
 from .mesh import HealthReport
 from .solver import check_load, is_neutral
-from .stability import CrossCurves, RightingCurve, cross_curves
 from .submerged import NOTE as SUBMERGED_NOTE
 from .submerged import check_clearance
 from .stability import CrossCurves, RightingCurve, cross_curves, curve_for_load
@@ -79,12 +77,19 @@ def from_case(path: str, condition_name: str | None = None, *, density: float | 
     """A case file's hull and condition (the first unless named); ``density`` overrides the file's [t/m³];
     ``progress(stage, done, total)`` follows the mesh's reading and checking."""
     case = read_case(path)
-    hull = case.load_hull(progress=progress)
-    cond = resolve_condition(case, hull, condition_name)
+    return case_input(case, case.load_hull(progress=progress), condition_name, density=density)
+
+
+def case_input(case: Any, hull: FloatingHull, condition_name: str | None = None, *, density: float | None = None,
+               tanks: Any = None) -> CaseInput:
+    """One condition of a read case (:class:`meshhydro.loading.Case`) on its loaded hull: tank fills and flooded
+    compartments resolved against the hull (``tanks``: already built ones, else built here), the case spec
+    (weather, windage, arms) and the condition's submerged depth."""
+    cond = resolve_condition(case, hull, condition_name, tanks=tanks)
     rho = case.density if density is None else float(density)
     specs = [c for c in getattr(case.spec, "conditions", ()) if c.name == cond.name]
     depth = specs[0].submerged_depth if specs else None
-    return CaseInput(hull, cond, case.openings, rho, f"{os.path.basename(path)}: {cond.name}", case.spec,
+    return CaseInput(hull, cond, case.openings, rho, f"{os.path.basename(case.path)}: {cond.name}", case.spec,
                      submerged_depth=depth)
 
 

@@ -13,7 +13,6 @@ from __future__ import annotations
 
 import io
 import math
-import os
 from typing import Any, Callable, Mapping, Sequence
 
 import numpy as np

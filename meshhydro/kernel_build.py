@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .jit import AVAILABLE, njit
+from .jit import AVAILABLE, njit  # noqa: F401 - AVAILABLE is part of this module's interface
 
 
 @njit(cache=True, nogil=True)

@@ -19,7 +19,7 @@ import numpy as np
 from .kernel_clip import Clip, flat_segments as clip_flat_segments
 from .kernel_prep import Prepared
 
-from .jit import AVAILABLE, njit
+from .jit import AVAILABLE, njit  # noqa: F401 - AVAILABLE is part of this module's interface
 
 
 @dataclass(frozen=True, eq=False)

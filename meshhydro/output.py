@@ -16,7 +16,6 @@ import math
 import os
 import shutil
 import signal
-import sys
 import tempfile
 import threading
 from typing import Any, Callable, Iterable, Iterator, Sequence

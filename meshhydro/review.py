@@ -169,15 +169,9 @@ def open_review(case_path: str, options: ReviewOptions = ReviewOptions(), *, bar
 
 
 def case_input(rv: Review, name: str) -> A.CaseInput:
-    """The CaseInput of one condition as :func:`meshhydro.analysis.from_case` builds it: tank fills and
-    flooded compartments resolved against the hull, the case spec (weather, windage, arms) and the
-    condition's submerged depth."""
-    c = resolve_condition(rv.case, rv.hull, name, tanks=rv.tanks)
-    spec = rv.case.spec
-    specs = [s for s in getattr(spec, "conditions", ()) if s.name == c.name]
-    depth = specs[0].submerged_depth if specs else None
-    return A.CaseInput(rv.hull, c, rv.case.openings, rv.case.density,
-                       f"{os.path.basename(rv.case.path)}: {c.name}", spec, submerged_depth=depth)
+    """The CaseInput of one condition, as :func:`meshhydro.analysis.from_case` builds it (the review's tanks
+    built once)."""
+    return A.case_input(rv.case, rv.hull, name, tanks=rv.tanks)
 
 
 def solve_condition(rv: Review, name: str) -> ConditionRun:

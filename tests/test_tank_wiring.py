@@ -20,7 +20,7 @@ from scipy.optimize import brentq
 from conftest import ROOT
 from meshhydro import analysis
 from meshhydro.cli import main
-from meshhydro.criteria import IMO_2008_GENERAL, evaluate
+from meshhydro.criteria import IMO_2008_GENERAL
 from meshhydro.damage import compartment_from_box
 from meshhydro.equilibrium import solve_load
 from meshhydro.fluid import FluidLoad

@@ -5,7 +5,6 @@ import math
 
 import numpy as np
 import pytest
-import trimesh
 
 from meshhydro import InputError
 from meshhydro.forms import box
