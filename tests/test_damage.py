@@ -12,6 +12,7 @@ import pytest
 import trimesh
 from scipy.optimize import brentq
 
+from closed_forms import bilged_side_list
 from meshhydro import kernel
 from meshhydro.damage import (
     compartment_from_box,
@@ -159,14 +160,7 @@ def test_bilged_side_compartment_list(box_hull):
 
     heel = brentq(gz, 0.01, 15.0, xtol=1e-12, rtol=1e-15)
     # closed form
-    a_int = L * B - ell * b
-    t1 = v0 / a_int
-    y_b1 = -(ell * b * t1 * yc) / v0
-    yf = -ell * b * yc / a_int
-    i_f = L * B**3 / 12 + L * B * yf**2 - (ell * b**3 / 12 + ell * b * (yc - yf) ** 2)
-    bm = i_f / v0
-    gm = t1 / 2 + bm - kg
-    tan_phi = brentq(lambda x: x * (gm + 0.5 * bm * x * x) - y_b1, 0.0, 1.0, xtol=1e-16)
+    tan_phi, y_b1, gm, bm = bilged_side_list(L, B, v0, kg, ell, b, yc)
     assert heel > 0  # lists to the damaged (starboard) side
     assert np.tan(np.radians(heel)) == pytest.approx(tan_phi, rel=1e-9)
     # the small-angle textbook list tan φ = y_B1 / GM is within its own approximation (½ BM tan² φ / GM)

@@ -15,9 +15,9 @@ import os
 import numpy as np
 import pytest
 import trimesh
-from scipy.optimize import brentq
 
 from conftest import ROOT
+from closed_forms import bilged_side_list
 from meshhydro import analysis
 from meshhydro.cli import main
 from meshhydro.criteria import IMO_2008_GENERAL
@@ -125,14 +125,7 @@ def test_bilged_side_compartment_list_by_solver(box_hull):
     comp = compartment_from_box("starboard wing", [[8.0, -3.0, 0.0], [12.0, -2.0, 4.0]], permeability=1.0)
     v0 = L * B * T0
     eq = solve_load(box_hull, FixedLoad(v0 * 1.025, (10.0, 0.0, kg)), compartments=[comp])
-    a_int = L * B - ell * b
-    t1 = v0 / a_int
-    y_b1 = -(ell * b * t1 * yc) / v0
-    yf = -ell * b * yc / a_int
-    i_f = L * B**3 / 12 + L * B * yf**2 - (ell * b**3 / 12 + ell * b * (yc - yf) ** 2)
-    bm = i_f / v0
-    gm = t1 / 2 + bm - kg
-    tan_phi = brentq(lambda x: x * (gm + 0.5 * bm * x * x) - y_b1, 0.0, 1.0, xtol=1e-16)
+    tan_phi = bilged_side_list(L, B, v0, kg, ell, b, yc)[0]
     assert eq.heel > 0  # lists to the damaged (starboard) side
     assert math.tan(math.radians(eq.heel)) == pytest.approx(tan_phi, rel=1e-8)
 
