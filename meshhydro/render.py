@@ -112,6 +112,7 @@ class Scene:
         allp = np.concatenate(boxes)
         self.lo, self.hi = allp.min(axis=0), allp.max(axis=0)
         self._add_water(pv, hull)
+        self._add_hull(pv)
         self._camera_set = False
         self.z_top, self.z_foot = np.inf, -np.inf
         self._set_camera()
@@ -133,6 +134,49 @@ class Scene:
             sheet = pv.Plane(center=(self.xc, 0.0, 0.0), direction=(0, 0, 1), i_size=1.1 * hull.length,
                              j_size=4 * ra, i_resolution=1, j_resolution=1)
             self.plotter.add_mesh(sheet, color=COLOURS["water"], opacity=0.38, name="water", render=False)
+
+    def _add_hull(self, pv: Any) -> None:
+        """The hull geometry, uploaded once in the hull frame, drawn twice: the part below the water
+        and the part above it, each cut by the renderer at the earth plane z = 0 (a clipping plane in
+        world coordinates); each frame only moves the actors (:meth:`_earth_matrix`)."""
+        from vtkmodules.vtkCommonDataModel import vtkPlane
+
+        alpha = 1.0 if self.camera == "astern" else 0.72
+        # an opaque closed hull seen from outside hides every back face behind a front face: skipping
+        # them halves the drawing and leaves the picture as it is (an open or see-through hull draws all)
+        cull = "back" if alpha == 1.0 and self.hull.report.closed else None
+        self.parts = {}
+        for name, nz in (("below", -1.0), ("above", 1.0)):  # the renderer keeps the side the normal points to
+            part = pv.PolyData()
+            part.SetPoints(self.base.GetPoints())  # one set of points, uploaded once per part
+            part.regular_faces = self.hull.faces
+            actor = self.plotter.add_mesh(part, color=COLOURS[name], name=name, smooth_shading=False,
+                                          render=False, opacity=alpha, culling=cull)
+            plane = vtkPlane()
+            plane.SetOrigin(0.0, 0.0, 0.0)
+            plane.SetNormal(0.0, 0.0, nz)
+            actor.GetMapper().AddClippingPlane(plane)
+            self.parts[name] = (actor, part)
+
+    def _split_faces(self, m: np.ndarray) -> None:
+        """Give each part only the faces that can reach its side of the water (a shortcut: the clipping
+        plane still does the cut). A face is kept when a vertex lies on that side or within a margin of
+        the plane far wider than the renderer's single-precision round-off, so no drawn pixel changes."""
+        z = self.hull.vertices @ m[2, :3] + m[2, 3]  # earth z [m] of each vertex, (n_vertices,)
+        zf = z[self.hull.faces]  # (n_faces, 3)
+        tol = 1e-3 * max(self.r_axis, 1e-9)
+        for name, keep in (("below", zf.min(axis=1) <= tol), ("above", zf.max(axis=1) >= -tol)):
+            actor, part = self.parts[name]
+            part.regular_faces = self.hull.faces[keep]
+            actor.SetVisibility(bool(keep.any()))
+
+    def _earth_matrix(self, k: int) -> np.ndarray:
+        """(4, 4) homogeneous hull-to-earth transform of angle ``k`` (the same map as :meth:`_to_earth`)."""
+        R = hull_to_earth(self.trace.heel[k], self.trace.trim[k])
+        m = np.eye(4)
+        m[:3, :3] = R
+        m[:3, 3] = -R @ self.K - np.array([0.0, 0.0, self.trace.keel_depth[k]])
+        return m
 
     def _to_earth(self, k: int, pts: np.ndarray) -> np.ndarray:
         R = hull_to_earth(self.trace.heel[k], self.trace.trim[k])
@@ -171,24 +215,10 @@ class Scene:
         pv = self.pv
         p = self.plotter
         t = self.trace
-        mesh = self.base.copy(deep=False)  # the faces are shared; only the points move
-        mesh.points = self._to_earth(k, self.hull.vertices)
-        # one clip gives both parts (the same surfaces as two clips with and without invert)
-        below, above = mesh.clip(normal=(0, 0, 1), origin=(0, 0, 0), invert=True, return_clipped=True)
-        alpha = 1.0 if self.camera == "astern" else 0.72
-        # an opaque closed hull seen from outside hides every back face behind a front face: skipping
-        # them halves the drawing and leaves the picture as it is (an open or see-through hull draws all)
-        cull = "back" if alpha == 1.0 and self.hull.report.closed else None
-        if below.n_points:
-            p.add_mesh(below, color=COLOURS["below"], name="below", smooth_shading=False, render=False,
-                       opacity=alpha, culling=cull)
-        else:
-            p.remove_actor("below", render=False)
-        if above.n_points:
-            p.add_mesh(above, color=COLOURS["above"], name="above", smooth_shading=False, render=False,
-                       opacity=alpha, culling=cull)
-        else:
-            p.remove_actor("above", render=False)
+        m = self._earth_matrix(k)
+        self._split_faces(m)
+        for actor, _ in self.parts.values():
+            actor.user_matrix = m
         cut = self.hull.cut(self.K + t.keel_depth[k] * t.up[k], t.up[k], segments=True)
         if cut.segments is not None and len(cut.segments):
             seg = self._to_earth(k, cut.segments.reshape(-1, 3))
