@@ -73,6 +73,8 @@ class PlaneFamily:
         self.backend = backend
         self.lean = kernel._backend(backend) == "compiled"
         self._tol = 1e-12 * max(prep.size, 1.0) ** 3
+        self._blocks = (prep.group_center, prep.group_half, prep.group_sums, prep.leaf_center, prep.leaf_half,
+                        prep.leaf_sums, prep.data, prep.face_index, prep.group_size)
 
     def probe(self, point: np.ndarray) -> Probe:
         """Volume and waterplane area below the plane through ``point`` (3,) [m, hull frame].
@@ -87,13 +89,16 @@ class PlaneFamily:
         d = float(n @ (p_hull - prep.origin))
         kernel.check_rim(prep, n, d)
         o = d * n
-        r = kernel_compiled.sweep(prep, n, d, o, self.u, self.v)
-        if len(r.flat_slots):  # faces lie in the plane: finish the whole cut now
+        # the compiled pass exactly as kernel_compiled.sweep calls it (cull, no segments)
+        sums, green, ext, _, _, nseg, flat = kernel_compiled._sweep(
+            *self._blocks, n, d, prep.rounding(d), True, o, self.u, self.v, False)
+        r = kernel_compiled.PassResult(sums, green, ext, int(nseg), None, None, flat)
+        if len(flat):  # faces lie in the plane: finish the whole cut now
             c = kernel._finish_compiled(prep, p_hull, n, d, self.u, self.v, o, r, False)
             return Probe(c.volume, c.waterplane_area, None, c)
         # as in kernel._finish without faces in the plane
-        a_in = float(r.green[0])
-        vol = float(r.sums[0]) / 6.0 + a_in * d / 3.0
+        a_in = float(green[0])
+        vol = float(sums[0]) / 6.0 + a_in * d / 3.0
         if not vol > self._tol:
             vol = max(vol, 0.0)
         return Probe(float(vol), a_in if a_in > 0.0 else 0.0, (p_hull, d, o, r), None)

@@ -378,8 +378,8 @@ def level_probe(prep: kernel.Prepared, up: np.ndarray, volume: float, *, capacit
     """:func:`solve_level` without finishing the whole cut: the plane family, the probe that
     holds the volume, and the cuts taken (``planes.level(probe)`` gives the fluid's fields)."""
     n = up
-    s_all = prep.vertices @ n
-    a, b = float(s_all.min()), float(s_all.max())
+    s_all = (prep.vertices @ n).tolist()
+    a, b = min(s_all), max(s_all)
     va, vb = 0.0, float(capacity)
     if guess is not None:
         s = float(n @ (np.asarray(guess, float) - prep.origin))
