@@ -170,13 +170,17 @@ def unit_normal(normal: np.ndarray) -> np.ndarray:
         When the normal is not three finite numbers or is the zero vector.
     """
     n = np.asarray(normal, dtype=np.float64).reshape(-1)
-    if n.shape != (3,) or not (math.isfinite(n[0]) and math.isfinite(n[1]) and math.isfinite(n[2])):
+    if n.shape != (3,):
         raise InputError(f"normal must be three finite numbers, got {normal!r}")
-    big = max(abs(n[0]), abs(n[1]), abs(n[2]))
+    x0, x1, x2 = n.tolist()  # Python floats: the same IEEE arithmetic, less overhead
+    if not (math.isfinite(x0) and math.isfinite(x1) and math.isfinite(x2)):
+        raise InputError(f"normal must be three finite numbers, got {normal!r}")
+    big = max(abs(x0), abs(x1), abs(x2))
     if big == 0.0:
         raise InputError("normal must not be the zero vector")
-    n = n / big
-    return n / math.sqrt(n[0] * n[0] + n[1] * n[1] + n[2] * n[2])
+    x0, x1, x2 = x0 / big, x1 / big, x2 / big
+    r = math.sqrt(x0 * x0 + x1 * x1 + x2 * x2)
+    return np.array([x0 / r, x1 / r, x2 / r])
 
 
 #: Kernel pass used when ``backend`` is not given: "compiled" when numba imports, else
@@ -271,17 +275,22 @@ def cut(
     o = d * n  # foot of the centred origin on the plane
     if _backend(backend) == "compiled":
         r = kernel_compiled.sweep(prep, n, d, o, u, v, cull=cull, segments=segments)
-        sums, green, ext, nseg = r.sums, r.green, r.extent, r.n_segments
-        flat = kernel_compiled.flat_segments_at(prep, r.flat_slots, n, d)
-        wseg = r.segments
-        if len(flat):
-            ext = _merge_extents(ext, _extent_rows(flat, o, u, v))
-            wseg = np.concatenate([wseg, flat]) if segments else None
-    else:
-        sums, green, wseg, flat = _pass_numpy(prep, n, d, o, u, v, cull)
-        ext, nseg = _extent_rows(wseg, o, u, v), len(wseg) - len(flat)
-        wseg = wseg if segments else None
+        return _finish_compiled(prep, p_hull, n, d, u, v, o, r, segments)
+    sums, green, wseg, flat = _pass_numpy(prep, n, d, o, u, v, cull)
+    ext, nseg = _extent_rows(wseg, o, u, v), len(wseg) - len(flat)
+    wseg = wseg if segments else None
     return _finish(prep, p_hull, n, d, u, v, o, sums, green, flat, ext, nseg + len(flat), wseg)
+
+
+def _finish_compiled(prep: Prepared, p_hull: np.ndarray, n: np.ndarray, d: float, u: np.ndarray,
+                     v: np.ndarray, o: np.ndarray, r: kernel_compiled.PassResult, segments: bool) -> Cut:
+    """:func:`_finish` for a compiled pass ``r``, with the faces lying in the plane added."""
+    ext, wseg = r.extent, r.segments
+    flat = kernel_compiled.flat_segments_at(prep, r.flat_slots, n, d)
+    if len(flat):
+        ext = _merge_extents(ext, _extent_rows(flat, o, u, v))
+        wseg = np.concatenate([wseg, flat]) if segments else None
+    return _finish(prep, p_hull, n, d, u, v, o, r.sums, r.green, flat, ext, r.n_segments + len(flat), wseg)
 
 
 def _merge_extents(a: np.ndarray, b: np.ndarray) -> np.ndarray:

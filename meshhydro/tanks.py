@@ -30,6 +30,7 @@ import numpy as np
 
 from . import kernel
 from .errors import InputError, InvalidMeshError, NotConvergedError
+from .kernel_level import PlaneFamily, Probe
 from .mesh import check_mesh
 
 #: Relative volume tolerance of the level solve (times the tank's capacity).
@@ -368,9 +369,17 @@ def solve_level(prep: kernel.Prepared, up: np.ndarray, volume: float, *, capacit
     cuts : int
         Kernel cuts taken.
     """
+    planes, probe, k = level_probe(prep, up, volume, capacity=capacity, guess=guess, name=name)
+    return planes.cut(probe), k
+
+
+def level_probe(prep: kernel.Prepared, up: np.ndarray, volume: float, *, capacity: float,
+                guess: np.ndarray | None = None, name: str = "tank") -> tuple[PlaneFamily, Probe, int]:
+    """:func:`solve_level` without finishing the whole cut: the plane family, the probe that
+    holds the volume, and the cuts taken (``planes.level(probe)`` gives the fluid's fields)."""
     n = up
-    s_all = prep.vertices @ n
-    a, b = float(s_all.min()), float(s_all.max())
+    s_all = (prep.vertices @ n).tolist()
+    a, b = min(s_all), max(s_all)
     va, vb = 0.0, float(capacity)
     if guess is not None:
         s = float(n @ (np.asarray(guess, float) - prep.origin))
@@ -378,13 +387,14 @@ def solve_level(prep: kernel.Prepared, up: np.ndarray, volume: float, *, capacit
         s = a + (b - a) * volume / capacity
     tol = LEVEL_VOLUME_RTOL * capacity
     prev_side = 0
+    planes = PlaneFamily(prep, n)  # lean cuts: the same numbers as kernel.cut, whole cut at the end
     for k in range(1, LEVEL_MAX_CUTS + 1):
         if not a < s < b:
             s = 0.5 * (a + b)
-        c = kernel.cut(prep, prep.origin + s * n, n)
+        c = planes.probe(prep.origin + s * n)
         r = c.volume - volume
         if abs(r) <= tol:
-            return c, k
+            return planes, c, k
         side = 1 if r > 0 else -1
         if side > 0:
             b, vb = s, c.volume
@@ -406,7 +416,7 @@ def _extreme(tank: Tank, n: np.ndarray, top: bool) -> np.ndarray:
     return tank.vertices[int(np.argmax(s) if top else np.argmin(s))].copy()
 
 
-def surface_tensor(c: kernel.Cut) -> np.ndarray:
+def surface_tensor(c: Any) -> np.ndarray:
     """The cut's waterplane second-moment tensor (3, 3) [m⁴] about its centroid, hull frame
     (the same as ``c.inertia_tensor``, in one small product)."""
     m = np.array([c.axis_u, c.axis_v])
@@ -433,7 +443,8 @@ def checked_state(tank: Tank, n: np.ndarray, vol: float, guess: np.ndarray | Non
         cen = tank.centroid_full.copy() if full else lp.copy()
         return TankState(tank.name, vol, tank.density * vol, cen, 0.0, 0.0, 0.0, n, lp,
                          float(n @ (lp - tank.sounding_point)), 0)
-    c, k = solve_level(tank.prepared, n, vol, capacity=tank.capacity, guess=guess, name=tank.name)
+    planes, probe, k = level_probe(tank.prepared, n, vol, capacity=tank.capacity, guess=guess, name=tank.name)
+    c = planes.level(probe)
     lp = c.waterplane_centroid
     return TankState(tank.name, vol, tank.density * vol, c.centroid, c.waterplane_area, c.inertia_t,
                      c.inertia_l, n, lp, float(n @ (lp - tank.sounding_point)), k, surface_tensor(c))

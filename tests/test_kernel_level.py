@@ -1,0 +1,84 @@
+"""The lean plane family of the level solve against the full kernel cut: the same numbers, bit for
+bit, on random and degenerate planes (through vertices, along edges, in faces, at the extremes)."""
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from meshhydro import kernel, kernel_compiled, load_hull
+from meshhydro.kernel_level import PlaneFamily
+from meshhydro.tanks import solve_level, tank_from_box, tank_state
+
+from conftest import ROOT, tm
+from planes import plane_set, reference_meshes
+
+LEVEL_FIELDS = ("volume", "waterplane_area", "inertia_t", "inertia_l", "inertia_uv")
+LEVEL_ARRAYS = ("centroid", "waterplane_centroid", "axis_u", "axis_v")
+
+
+def _meshes():
+    box = tank_from_box("box", [[2.0, -2.5, 0.3], [4.5, -0.5, 2.3]], density=1.0)
+    yield "box tank", box.prepared, box.vertices, box.faces
+    meshes = reference_meshes(ROOT)
+    for name in ("grid_box", "torus"):
+        hull = load_hull(tm(*meshes[name][0]()))
+        yield name, hull.prepared, hull.vertices, hull.faces
+
+
+def _same(a, b, where):
+    for f in LEVEL_FIELDS:
+        assert getattr(a, f) == getattr(b, f), (f, where)
+    for f in LEVEL_ARRAYS:
+        np.testing.assert_array_equal(getattr(a, f), getattr(b, f), err_msg=f"{f} {where}")
+
+
+@pytest.mark.parametrize("backend", ["compiled", "numpy"])
+@pytest.mark.parametrize("name,prep,v,f", list(_meshes()))
+def test_lean_probe_equals_full_cut(name, prep, v, f, backend):
+    # equivalence with kernel.cut (the reference path, itself checked against closed forms and trimesh)
+    if backend == "compiled" and not kernel_compiled.AVAILABLE:
+        pytest.skip("numba is not importable")
+    rng = np.random.default_rng(11)
+    P, N, K = plane_set(v, f, 120, rng, degenerate_share=0.5)
+    assert {"vertex", "edge", "face"} <= set(K)
+    for p, n, kind in zip(P, N, K, strict=True):
+        normal = n * rng.choice([1.0, 3.7, 1e-3])  # not unit: normalised alike on both paths
+        full = kernel.cut(prep, p, normal, backend=backend)
+        planes = PlaneFamily(prep, normal, backend=backend)
+        probe = planes.probe(p)
+        where = (name, kind, p.tolist(), n.tolist())
+        assert probe.volume == full.volume and probe.waterplane_area == full.waterplane_area, where
+        _same(planes.level(probe), full, where)
+        whole = planes.cut(probe)
+        _same(whole, full, where)
+        assert whole.wetted_area == full.wetted_area and whole.n_segments == full.n_segments, where
+        np.testing.assert_array_equal(whole.waterline_x, full.waterline_x)
+        assert (whole.waterline_length, whole.waterline_breadth) == (full.waterline_length,
+                                                                     full.waterline_breadth), where
+
+
+def test_tank_state_equals_full_cut_at_its_level():
+    # the state's fields are those of kernel.cut at the plane the solve found
+    t = tank_from_box("box", [[0.0, 0.0, 0.0], [3.0, 2.0, 1.5]], density=1.025)
+    rng = np.random.default_rng(3)
+    for _ in range(40):
+        up = rng.normal(size=3)
+        up[2] = abs(up[2]) + 0.1
+        up /= np.linalg.norm(up)
+        vol = float(rng.uniform(0.05, 0.95)) * t.capacity
+        st = tank_state(t, up, vol)
+        c, k = solve_level(t.prepared, st.normal, vol, capacity=t.capacity)
+        assert k == st.cuts
+        np.testing.assert_array_equal(st.centroid, c.centroid)
+        np.testing.assert_array_equal(st.level_point, c.waterplane_centroid)
+        assert (st.free_surface_area, st.i_t, st.i_l) == (c.waterplane_area, c.inertia_t, c.inertia_l)
+
+
+def test_unit_normal_scales_then_normalises():
+    # the textbook normalisation n / |n| after scaling by the largest component (no overflow)
+    rng = np.random.default_rng(7)
+    for _ in range(200):
+        n = rng.normal(size=3) * 10.0 ** rng.integers(-200, 200)
+        m = n / np.abs(n).max()
+        ref = m / np.sqrt(m[0] * m[0] + m[1] * m[1] + m[2] * m[2])
+        np.testing.assert_array_equal(kernel.unit_normal(n), ref)
