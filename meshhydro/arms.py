@@ -24,7 +24,7 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from .errors import InputError
+from .errors import InputError, finite_number
 
 ARM_KINDS = ("constant", "cosine", "table")
 #: Samples per knot interval when looking for sign changes of GZ − arm (roots are then
@@ -187,21 +187,11 @@ def make_arm(name: str, kind: str, *, a: float | None = None, n: float | None = 
         if len(bad):
             raise InputError(f"{where}: table angles must increase (row {bad[0] + 2}, {t[bad[0] + 1, 0]:g}°)")
         return HeelingArm(name, kind, table=t)
-    fa = _finite(a, where, "a")
-    fn = 0.0 if n is None else _finite(n, where, "n")
+    fa = finite_number(a, f"{where}: a")
+    fn = 0.0 if n is None else finite_number(n, f"{where}: n")
     if fn < 0:
         raise InputError(f"{where}: n must not be negative, got {fn:g}")
     return HeelingArm(name, kind, a=fa, n=fn if kind == "cosine" else 0.0)
-
-
-def _finite(v: Any, where: str, key: str) -> float:
-    try:
-        x = float(v)
-    except (TypeError, ValueError):
-        raise InputError(f"{where}: {key} must be a number, got {v!r}") from None
-    if not math.isfinite(x):
-        raise InputError(f"{where}: {key} must be finite, got {v!r}")
-    return x
 
 
 # --------------------------------------------------------------------------- intercepts

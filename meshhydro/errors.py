@@ -47,3 +47,16 @@ class NotConvergedError(MeshHydroError, RuntimeError):
     """An iterative solver did not meet its tolerances."""
 
     exit_code = 6
+
+
+def finite_number(value: object, what: str) -> float:
+    """``value`` as a finite float, else an :class:`InputError` ``'<what> must be a number | finite, got ...'``."""
+    import math
+
+    try:
+        x = float(value)  # type: ignore[arg-type]
+    except (TypeError, ValueError):
+        raise InputError(f"{what} must be a number, got {value!r}") from None
+    if not math.isfinite(x):
+        raise InputError(f"{what} must be finite, got {value!r}")
+    return x

@@ -191,7 +191,8 @@ DEFAULT_BACKEND = (
 )
 
 
-def _backend(backend: str | None) -> str:
+def resolve_backend(backend: str | None) -> str:
+    """The kernel backend to use: ``backend`` or the default, checked (InputError when unknown or unavailable)."""
     name = DEFAULT_BACKEND if backend is None else backend
     if name not in ("numpy", "compiled"):
         raise InputError(f"kernel backend must be 'numpy' or 'compiled', got {backend!r}")
@@ -205,7 +206,7 @@ def clip(prep: Prepared, n: np.ndarray, d: float, *, cull: bool = True, backend:
 
     See :func:`meshhydro.kernel_clip.clip`; ``backend`` as in :func:`cut`.
     """
-    if _backend(backend) == "compiled":
+    if resolve_backend(backend) == "compiled":
         return kernel_compiled.clip(prep, n, d, cull=cull)
     return clip_numpy(prep, n, d, cull=cull)
 
@@ -273,16 +274,16 @@ def cut(
     check_rim(prep, n, d)
     u, v = plane_axes(n)
     o = d * n  # foot of the centred origin on the plane
-    if _backend(backend) == "compiled":
+    if resolve_backend(backend) == "compiled":
         r = kernel_compiled.sweep(prep, n, d, o, u, v, cull=cull, segments=segments)
-        return _finish_compiled(prep, p_hull, n, d, u, v, o, r, segments)
+        return finish_compiled(prep, p_hull, n, d, u, v, o, r, segments)
     sums, green, wseg, flat = _pass_numpy(prep, n, d, o, u, v, cull)
     ext, nseg = _extent_rows(wseg, o, u, v), len(wseg) - len(flat)
     wseg = wseg if segments else None
     return _finish(prep, p_hull, n, d, u, v, o, sums, green, flat, ext, nseg + len(flat), wseg)
 
 
-def _finish_compiled(prep: Prepared, p_hull: np.ndarray, n: np.ndarray, d: float, u: np.ndarray,
+def finish_compiled(prep: Prepared, p_hull: np.ndarray, n: np.ndarray, d: float, u: np.ndarray,
                      v: np.ndarray, o: np.ndarray, r: kernel_compiled.PassResult, segments: bool) -> Cut:
     """:func:`_finish` for a compiled pass ``r``, with the faces lying in the plane added."""
     ext, wseg = r.extent, r.segments

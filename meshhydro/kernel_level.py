@@ -71,7 +71,7 @@ class PlaneFamily:
         self.normal = kernel.unit_normal(normal)
         self.u, self.v = plane_axes(self.normal)
         self.backend = backend
-        self.lean = kernel._backend(backend) == "compiled"
+        self.lean = kernel.resolve_backend(backend) == "compiled"
         self._tol = 1e-12 * max(prep.size, 1.0) ** 3
         self._blocks = (prep.group_center, prep.group_half, prep.group_sums, prep.leaf_center, prep.leaf_half,
                         prep.leaf_sums, prep.data, prep.face_index, prep.group_size)
@@ -94,7 +94,7 @@ class PlaneFamily:
             *self._blocks, n, d, prep.rounding(d), True, o, self.u, self.v, False)
         r = kernel_compiled.PassResult(sums, green, ext, int(nseg), None, None, flat)
         if len(flat):  # faces lie in the plane: finish the whole cut now
-            c = kernel._finish_compiled(prep, p_hull, n, d, self.u, self.v, o, r, False)
+            c = kernel.finish_compiled(prep, p_hull, n, d, self.u, self.v, o, r, False)
             return Probe(c.volume, c.waterplane_area, None, c)
         # as in kernel._finish without faces in the plane
         a_in = float(green[0])
@@ -132,5 +132,5 @@ class PlaneFamily:
         """The whole :class:`~meshhydro.kernel.Cut` of a probe of this family."""
         if probe._cut is None:
             p_hull, d, o, r = probe._pass
-            probe._cut = kernel._finish_compiled(self.prep, p_hull, self.normal, d, self.u, self.v, o, r, False)
+            probe._cut = kernel.finish_compiled(self.prep, p_hull, self.normal, d, self.u, self.v, o, r, False)
         return probe._cut

@@ -29,7 +29,7 @@ from typing import Any, Sequence
 import numpy as np
 
 from . import kernel
-from .errors import InputError, InvalidMeshError, NotConvergedError
+from .errors import InputError, InvalidMeshError, NotConvergedError, finite_number
 from .kernel_level import PlaneFamily, Probe
 from .mesh import check_mesh
 
@@ -92,7 +92,7 @@ class Tank:
             raise InputError(f"tank {self.name!r}: give exactly one of volume, fraction, sounding "
                              f"(got {', '.join(given) or 'none'})")
         kind = given[0]
-        x = _finite(volume if kind == "volume" else fraction if kind == "fraction" else sounding,
+        x = finite_number(volume if kind == "volume" else fraction if kind == "fraction" else sounding,
                     f"tank {self.name!r}: {kind}")
         if kind == "volume":
             if not 0.0 <= x <= self.capacity:
@@ -170,18 +170,8 @@ class TankState:
 
 # --------------------------------------------------------------------------- construction
 
-def _finite(value: Any, what: str) -> float:
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{what} must be a number, got {value!r}") from None
-    if not math.isfinite(x):
-        raise InputError(f"{what} must be finite, got {value!r}")
-    return x
-
-
 def _density(value: Any, name: str) -> float:
-    rho = _finite(value, f"tank {name!r}: density")
+    rho = finite_number(value, f"tank {name!r}: density")
     if rho <= 0.0:
         raise InputError(f"tank {name!r}: density must be positive, got {rho:.6g} t/m³")
     return rho
@@ -429,7 +419,7 @@ def tank_state(tank: Tank, up: Any, volume: float, *, guess: np.ndarray | None =
     Full (``volume == capacity``) and empty (``volume == 0``) tanks need no cut.
     """
     n = unit_vertical(up)
-    vol = _finite(volume, f"tank {tank.name!r}: volume")
+    vol = finite_number(volume, f"tank {tank.name!r}: volume")
     if not 0.0 <= vol <= tank.capacity:
         raise InputError(f"tank {tank.name!r}: volume {vol:.6g} m³ is outside 0..{tank.capacity:.6g} m³")
     return checked_state(tank, n, vol, guess)
@@ -453,7 +443,7 @@ def checked_state(tank: Tank, n: np.ndarray, vol: float, guess: np.ndarray | Non
 def sounding_cut(tank: Tank, sounding: float, up: Any) -> kernel.Cut:
     """The fluid below the level ``sounding`` [m] above the sounding point, vertical ``up`` (3,)."""
     n = unit_vertical(up)
-    h = _finite(sounding, f"tank {tank.name!r}: sounding")
+    h = finite_number(sounding, f"tank {tank.name!r}: sounding")
     s = tank.vertices @ n
     base = float(n @ tank.sounding_point)
     lo, hi = float(s.min()) - base, float(s.max()) - base

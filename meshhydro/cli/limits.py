@@ -52,7 +52,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     k.add_argument("--steps", type=int, default=40, help="grid steps over the KG range that bracket a limit "
                                                          "(default 40)")
     k.add_argument("--lcg", type=float, help="fixed LCG [m] instead of the LCB of level flotation")
-    k.add_argument("--plot", help="draw the KG limit curve to this PNG")
+    k.add_argument("--plot", help="draw the KG limit curve to this file (.png, .svg or .pdf)")
     water_args(k)
     mesh_args(k)
     out_args(k)
