@@ -43,6 +43,8 @@ CAMERA_NOTE = {"astern": "camera: astern, looking forward level with the water (
                "oblique": "camera: oblique, from aft on the starboard quarter, above the water (perspective)"}
 
 
+#: samples per pixel of the anti-aliased (smooth) frames
+MULTI_SAMPLES = 8
 #: half a unit of the last digit of GZ in the frame header [m]
 GZ_SHOWN = 0.0005
 
@@ -81,9 +83,13 @@ class Scene:
     trace : meshhydro.sweep.Trace
     size : (width, height) pixels
     camera : 'astern' (looking forward along the hull, parallel projection) or 'oblique'
+    smooth : anti-alias edges (multisampling; in software OpenGL about twice the drawing time)
+    split : give each coloured part only the faces that can reach its side of the water (a shortcut
+        that leaves every pixel as it is; ``False`` draws every face twice, for checking it)
     """
 
-    def __init__(self, hull: Hull, trace: Any, *, size: tuple[int, int] = (960, 720), camera: str = "astern") -> None:
+    def __init__(self, hull: Hull, trace: Any, *, size: tuple[int, int] = (960, 720), camera: str = "astern",
+                 smooth: bool = False, split: bool = True) -> None:
         if camera not in ("astern", "oblique"):
             from .errors import InputError
 
@@ -92,10 +98,11 @@ class Scene:
         self.pv = pv
         self.hull = hull
         self.trace = trace
+        self.split = split
         self.K = np.array([hull.x_ref, 0.0, 0.0])
-        faces = np.hstack([np.full((len(hull.faces), 1), 3), hull.faces]).ravel()
-        self.base = pv.PolyData(hull.vertices.copy(), faces)
         self.plotter = pv.Plotter(off_screen=True, window_size=list(size))
+        # the sample count takes effect when the window is first drawn, so it is set before that
+        self.plotter.ren_win.SetMultiSamples(MULTI_SAMPLES if smooth else 0)
         self.plotter.set_background(COLOURS["background"])
         self.size = size
         self.camera = camera
@@ -116,6 +123,7 @@ class Scene:
         self._camera_set = False
         self.z_top, self.z_foot = np.inf, -np.inf
         self._set_camera()
+        self._add_marks(pv)
 
     def _add_water(self, pv: Any, hull: Hull) -> None:
         """The water, the same in every frame (earth frame, surface at z = 0)."""
@@ -146,9 +154,10 @@ class Scene:
         # them halves the drawing and leaves the picture as it is (an open or see-through hull draws all)
         cull = "back" if alpha == 1.0 and self.hull.report.closed else None
         self.parts = {}
+        points = pv.vtk_points(self.hull.vertices)  # one set of points, uploaded once per part
         for name, nz in (("below", -1.0), ("above", 1.0)):  # the renderer keeps the side the normal points to
             part = pv.PolyData()
-            part.SetPoints(self.base.GetPoints())  # one set of points, uploaded once per part
+            part.SetPoints(points)
             part.regular_faces = self.hull.faces
             actor = self.plotter.add_mesh(part, color=COLOURS[name], name=name, smooth_shading=False,
                                           render=False, opacity=alpha, culling=cull)
@@ -162,10 +171,12 @@ class Scene:
         """Give each part only the faces that can reach its side of the water (a shortcut: the clipping
         plane still does the cut). A face is kept when a vertex lies on that side or within a margin of
         the plane far wider than the renderer's single-precision round-off, so no drawn pixel changes."""
+        if not self.split:
+            return
         z = self.hull.vertices @ m[2, :3] + m[2, 3]  # earth z [m] of each vertex, (n_vertices,)
-        zf = z[self.hull.faces]  # (n_faces, 3)
         tol = 1e-3 * max(self.r_axis, 1e-9)
-        for name, keep in (("below", zf.min(axis=1) <= tol), ("above", zf.max(axis=1) >= -tol)):
+        for name, near in (("below", z <= tol), ("above", z >= -tol)):
+            keep = near[self.hull.faces].any(axis=1)  # (n_faces,) bool
             actor, part = self.parts[name]
             part.regular_faces = self.hull.faces[keep]
             actor.SetVisibility(bool(keep.any()))
@@ -210,22 +221,51 @@ class Scene:
             p.camera.view_angle = 30.0
         self._camera_set = True
 
-    def render(self, k: int, path: str) -> None:
-        """Render angle ``k`` of the trace to the PNG ``path``."""
-        pv = self.pv
+    def _add_marks(self, pv: Any) -> None:
+        """The marks drawn in every frame, made once and moved per frame: spheres for G, B and M, the
+        lever, the verticals through B and G, the waterline, the header and the legend."""
         p = self.plotter
+        self.rad = 0.03 * self.r_axis
+        self.marks: dict[str, Any] = {}
+        for n in ("G", "B", "M"):
+            self.marks[n] = p.add_mesh(pv.Sphere(radius=self.rad, center=(0.0, 0.0, 0.0)), color=COLOURS[n], name=n,
+                                       render=False)
+        self.lines: dict[str, Any] = {}
+        for n, colour, width in (("lever", COLOURS["lever"], 6), ("vB", COLOURS["B"], 1), ("vG", COLOURS["G"], 1)):
+            self.lines[n] = pv.Line((0.0, 0.0, 0.0), (0.0, 0.0, 1.0))
+            p.add_mesh(self.lines[n], color=colour, line_width=width, name=n, render=False)
+        self.waterline = pv.PolyData(np.zeros((2, 3)), lines=np.array([2, 0, 1]))
+        self.waterline_actor = p.add_mesh(self.waterline, color=COLOURS["waterline"], line_width=3, name="waterline",
+                                          render=False)
+        fs = max(7, int(round(13 * self.size[0] / 960)))
+        self.header = p.add_text("", position="upper_left", font_size=fs, color="#222222", name="label",
+                                 render=False)
+        p.add_text("G centre of gravity (black)   B centre of buoyancy (blue)   M metacentre (green)   "
+                   "GZ lever (orange)\n" + CAMERA_NOTE[self.camera],
+                   position="lower_left", font_size=max(6, fs - 2), color="#444444", name="legend", render=False)
+
+    def _place_waterline(self, k: int) -> None:
+        """The waterline of angle ``k`` (the kernel's cut segments), drawn just above the water."""
+        t = self.trace
+        cut = self.hull.cut(self.K + t.keel_depth[k] * t.up[k], t.up[k], segments=True)
+        has = cut.segments is not None and len(cut.segments) > 0
+        self.waterline_actor.SetVisibility(has)
+        if has:
+            seg = self._to_earth(k, cut.segments.reshape(-1, 3))
+            seg[:, 2] += 1e-4 * self.r_axis  # keep the line above the sheet
+            n = len(seg) // 2
+            self.waterline.points = seg
+            self.waterline.lines = np.hstack([np.full((n, 1), 2), np.arange(2 * n).reshape(n, 2)]).ravel()
+
+    def render(self, k: int, path: str | None = None) -> np.ndarray:
+        """Draw angle ``k`` of the trace: returns the picture, (height, width, 3) uint8 RGB, and writes it
+        to the PNG ``path`` when given."""
         t = self.trace
         m = self._earth_matrix(k)
         self._split_faces(m)
         for actor, _ in self.parts.values():
             actor.user_matrix = m
-        cut = self.hull.cut(self.K + t.keel_depth[k] * t.up[k], t.up[k], segments=True)
-        if cut.segments is not None and len(cut.segments):
-            seg = self._to_earth(k, cut.segments.reshape(-1, 3))
-            seg[:, 2] += 1e-4 * self.r_axis  # keep the line above the sheet
-            n = len(seg) // 2
-            lines = np.hstack([np.full((n, 1), 2), np.arange(2 * n).reshape(n, 2)]).ravel()
-            p.add_mesh(pv.PolyData(seg, lines=lines), color=COLOURS["waterline"], line_width=3, name="waterline", render=False)
+        self._place_waterline(k)
         G = self._to_earth(k, t.cog_at(k)[None, :])[0]
         B = self._to_earth(k, t.cob[k][None, :])[0]
         M = self._to_earth(k, t.metacentre[k][None, :])[0]
@@ -234,44 +274,39 @@ class Scene:
             # their place on the picture and keeps them in front of the hull
             for q in (G, B, M):
                 q[0] = self.x_front
-        rad = 0.03 * self.r_axis
-        p.add_mesh(pv.Sphere(radius=rad, center=G), color=COLOURS["G"], name="G", render=False)
-        p.add_mesh(pv.Sphere(radius=rad, center=B), color=COLOURS["B"], name="B", render=False)
+        self.marks["G"].SetPosition(*G)
+        self.marks["B"].SetPosition(*B)
         shown = [("G", G), ("B", B)]
-        if np.linalg.norm(M[1:]) < 1.1 * self.r_axis:
-            p.add_mesh(pv.Sphere(radius=rad, center=M), color=COLOURS["M"], name="M", render=False)
+        m_in_view = bool(np.linalg.norm(M[1:]) < 1.1 * self.r_axis)
+        self.marks["M"].SetVisibility(m_in_view)
+        if m_in_view:
+            self.marks["M"].SetPosition(*M)
             shown.append(("M", M))
             mtext = ""
         else:
-            p.remove_actor("M", render=False)
             mtext = f"   M off view (BM {t.bm[k]:.2f} m)"
         if getattr(t, "note", ""):
             mtext += f"\n{t.note}"
-        self._letters(shown, rad)
-        Z = np.array([G[0], B[1], G[2]])
-        p.add_mesh(pv.Line(G, Z), color=COLOURS["lever"], line_width=6, name="lever", render=False)
+        self._letters(shown, self.rad)
+        self.lines["lever"].points = np.array([G, [G[0], B[1], G[2]]])
         ra = self.r_axis
         top = max(G[2], B[2], 0.0) + 0.5 * ra
         if self.camera == "astern" and self._camera_set:
             top = min(top, self.z_top)  # the verticals stop below the header text
         for q, below, name in ((B, 0.3, "vB"), (G, 0.5, "vG")):  # verticals through B and G, clear of the texts
-            low = np.array([q[0], q[1], max(q[2] - below * ra, self.z_foot)])
-            p.add_mesh(pv.Line(low, np.array([q[0], q[1], top])), color=COLOURS[name[1]], line_width=1, name=name,
-                       render=False)
+            self.lines[name].points = np.array([[q[0], q[1], max(q[2] - below * ra, self.z_foot)], [q[0], q[1], top]])
         side, lever = side_words(float(t.heel[k]), float(t.gz[k]))
         heel = f"heel {abs(t.heel[k]):.1f}° {side}" if t.heel[k] != 0 else "upright"
-        label = (f"{heel}   GZ {abs(t.gz[k]):.3f} m {lever}\n"
-                 f"Δ {t.displacement:.3f} t   {_draft_text(t.draft[k])}   trim {t.trim[k]:+.2f}° (+ bow down){mtext}")
-        fs = max(7, int(round(13 * self.size[0] / 960)))
-        p.add_text(label, position="upper_left", font_size=fs, color="#222222", name="label", render=False)
-        p.add_text("G centre of gravity (black)   B centre of buoyancy (blue)   M metacentre (green)   "
-                   "GZ lever (orange)\n" + CAMERA_NOTE[self.camera],
-                   position="lower_left", font_size=max(6, fs - 2), color="#444444", name="legend", render=False)
-        p.render()
-        from PIL import Image
+        self.header.set_text("upper_left", f"{heel}   GZ {abs(t.gz[k]):.3f} m {lever}\n"
+                             f"Δ {t.displacement:.3f} t   {_draft_text(t.draft[k])}   trim {t.trim[k]:+.2f}° "
+                             f"(+ bow down){mtext}")
+        self.plotter.render()
+        rgb = self.plotter.screenshot(None, return_img=True)
+        if path is not None:
+            from PIL import Image
 
-        # the same pixels as p.screenshot(path); a light PNG compression writes (and reads back) faster
-        Image.fromarray(p.screenshot(None, return_img=True)).save(path, format="PNG", compress_level=1)
+            Image.fromarray(rgb).save(path, format="PNG", compress_level=1)
+        return rgb
 
     def _letters(self, shown: list[tuple[str, np.ndarray]], rad: float) -> None:
         """The letters G, B, M beside their marks (offset up and to the left on the picture)."""
@@ -293,3 +328,27 @@ class Scene:
 
     def close(self) -> None:
         self.plotter.close()
+
+
+def render_pictures(hull: Hull, trace: Any, *, size: tuple[int, int] = (960, 720), camera: str = "astern",
+                    smooth: bool = False, sheet: bool = True, gif: bool = True, progress: Any = None) -> Any:
+    """Draw every angle of the trace and encode the pictures while the next frame draws.
+
+    Returns a :class:`meshhydro.frame_files.SweepPictures` (frame PNGs in angle order, the contact sheet
+    and the GIF when asked). ``progress`` is called once per frame drawn.
+    """
+    from .frame_files import FrameEncoder
+
+    scene = Scene(hull, trace, size=size, camera=camera, smooth=smooth)
+    encoder = FrameEncoder(sheet=sheet, gif=gif)
+    try:
+        for k in range(len(trace.heel)):
+            encoder.add(scene.render(k))
+            if progress is not None:
+                progress()
+    except BaseException:
+        encoder.cancel()
+        raise
+    finally:
+        scene.close()
+    return encoder.finish()

@@ -8,8 +8,6 @@ once, in one scene, and reused for its animation.
 """
 from __future__ import annotations
 
-import os
-import tempfile
 from typing import Any, Callable
 
 from . import figures
@@ -49,37 +47,21 @@ class ReportDrawer:
     def _rendered(self, d: Any) -> tuple[list[bytes], bytes]:
         key = id(d.trace)
         if key not in self._sweeps:
-            self._sweeps[key] = render_sweep(d.hull, d.trace, size=d.size, camera=d.camera, bars=self.bars)
+            self._sweeps[key] = render_sweep(d.hull, d.trace, size=d.size, camera=d.camera, smooth=d.smooth,
+                                             bars=self.bars)
         return self._sweeps[key]
 
 
-def render_sweep(hull: Any, trace: Any, *, size: tuple[int, int], camera: str,
+def render_sweep(hull: Any, trace: Any, *, size: tuple[int, int], camera: str, smooth: bool = False,
                  bars: Callable[[int, str], Any] | None = None) -> tuple[list[bytes], bytes]:
     """PNG bytes of every frame of the trace, and the animated GIF of them (forth and back)."""
-    from .render import Scene
-    from .sweep import animated_gif
+    from .render import render_pictures
 
     bar = bars(len(trace.heel), "rendering frames") if bars is not None else None
-    with tempfile.TemporaryDirectory(prefix="meshhydro-report-") as tmp:
-        scene = Scene(hull, trace, size=size, camera=camera)
-        paths = []
-        try:
-            for k in range(len(trace.heel)):
-                p = os.path.join(tmp, f"frame_{k:03d}.png")
-                scene.render(k, p)
-                paths.append(p)
-                if bar is not None:
-                    bar()
-        finally:
-            scene.close()
-            if bar is not None:
-                bar.close()
-        frames = []
-        for p in paths:
-            with open(p, "rb") as fh:
-                frames.append(fh.read())
-        gif_path = os.path.join(tmp, "sweep.gif")
-        animated_gif(paths, gif_path)
-        with open(gif_path, "rb") as fh:
-            gif = fh.read()
-    return frames, gif
+    try:
+        pics = render_pictures(hull, trace, size=size, camera=camera, smooth=smooth, sheet=False, gif=True,
+                               progress=bar)
+    finally:
+        if bar is not None:
+            bar.close()
+    return pics.frames, pics.gif

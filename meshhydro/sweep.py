@@ -119,37 +119,14 @@ def _check_target(out: str) -> None:
             raise InputError(f"{out}: folder is not empty and holds no earlier sweep; choose another folder")
 
 
-def contact_sheet(paths: Sequence[str], out: str, *, columns: int | None = None, pad: int = 6) -> None:
-    """Grid of frame images (PNG)."""
-    from PIL import Image
-
-    ims = [Image.open(p).convert("RGB") for p in paths]
-    w, h = ims[0].size
-    n = len(ims)
-    cols = columns or int(np.ceil(np.sqrt(n * h / w))) or 1
-    cols = max(1, min(cols, n))
-    rows = int(np.ceil(n / cols))
-    sheet = Image.new("RGB", (cols * w + (cols + 1) * pad, rows * h + (rows + 1) * pad), (255, 255, 255))
-    for i, im in enumerate(ims):
-        r, c = divmod(i, cols)
-        sheet.paste(im, (pad + c * (w + pad), pad + r * (h + pad)))
-    sheet.save(out, format="PNG")
-
-
-def animated_gif(paths: Sequence[str], out: str, *, frame_ms: int = 350, bounce: bool = True) -> None:
-    """GIF of the frames (forth and back when ``bounce``)."""
-    from PIL import Image
-
-    # each frame is quantized once; the return leg of a bounce repeats the same images
-    pal = [Image.open(p).convert("RGB").quantize(colors=255, method=Image.Quantize.MEDIANCUT) for p in paths]
-    if bounce and len(pal) > 2:
-        pal = pal + pal[-2:0:-1]
-    pal[0].save(out, format="GIF", save_all=True, append_images=pal[1:], duration=frame_ms, loop=0, disposal=2)
+def _write_bytes(path: str, data: bytes) -> None:
+    with open(path, "wb") as fh:
+        fh.write(data)
 
 
 def write_sweep(hull: Hull, trace: Trace, out: str, *, view: str = "both", size: tuple[int, int] = (960, 720),
-                sheet: bool = True, gif: bool = True, camera: str = "astern", progress: Any = None,
-                timings: dict[str, float] | None = None) -> list[str]:
+                sheet: bool = True, gif: bool = True, camera: str = "astern", smooth: bool = False,
+                progress: Any = None, timings: dict[str, float] | None = None) -> list[str]:
     """Write the sweep outputs into folder ``out`` (replacing an earlier sweep whole).
 
     Writes ``trace.json``; with view 3d or both: ``frames/frame_NNN_<heel>.png``,
@@ -179,30 +156,19 @@ def write_sweep(hull: Hull, trace: Trace, out: str, *, view: str = "both", size:
             tt["section"] = time.perf_counter() - t
             written.append("section.png")
         if view in ("3d", "both"):
-            from .render import Scene
+            from .render import render_pictures
 
             t = time.perf_counter()
+            pics = render_pictures(hull, trace, size=size, camera=camera, smooth=smooth, sheet=sheet, gif=gif,
+                                   progress=progress)
             os.makedirs(os.path.join(tmp, "frames"))
-            scene = Scene(hull, trace, size=size, camera=camera)
-            frames = []
-            try:
-                for k in range(len(trace.heel)):
-                    name = f"frame_{k:03d}_{trace.heel[k]:+07.2f}.png".replace("+", "p").replace("-", "m")
-                    path = os.path.join(tmp, "frames", name)
-                    scene.render(k, path)
-                    frames.append(path)
-                    written.append(os.path.join("frames", name))
-                    if progress is not None:
-                        progress()
-            finally:
-                scene.close()
+            for k, png in enumerate(pics.frames):
+                name = f"frame_{k:03d}_{trace.heel[k]:+07.2f}.png".replace("+", "p").replace("-", "m")
+                _write_bytes(os.path.join(tmp, "frames", name), png)
+                written.append(os.path.join("frames", name))
+            for name, data in (("sheet.png", pics.sheet), ("sweep.gif", pics.gif)):
+                if data is not None:
+                    _write_bytes(os.path.join(tmp, name), data)
+                    written.append(name)
             tt["render"] = time.perf_counter() - t
-            t = time.perf_counter()
-            if sheet:
-                contact_sheet(frames, os.path.join(tmp, "sheet.png"))
-                written.append("sheet.png")
-            if gif:
-                animated_gif(frames, os.path.join(tmp, "sweep.gif"))
-                written.append("sweep.gif")
-            tt["sheet_gif"] = time.perf_counter() - t
     return written

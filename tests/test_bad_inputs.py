@@ -697,6 +697,8 @@ def test_cli_opening_where_unused(capsys, tmp_path):
 def test_cli_sweep_3d_options_with_section_view(capsys, tmp_path):
     msg = refused(capsys, "sweep", BARGE_CASE, "--view", "section", "--gif", "--out", str(tmp_path / "s"))
     assert "--gif: these shape the 3D frames" in msg
+    msg = refused(capsys, "sweep", BARGE_CASE, "--view", "section", "--smooth-edges", "--out", str(tmp_path / "s"))
+    assert "--smooth-edges: these shape the 3D frames" in msg
 
 
 # ---------------------------------------------------------------- files follow what was asked for

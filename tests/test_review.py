@@ -135,6 +135,7 @@ def test_report_command_writes_one_file(tmp_path, capsys):
 @pytest.mark.parametrize("argv, message", [
     (["--out", "r.txt"], "give a file ending in .html"),
     (["--out", "r.html", "--no-sweep", "--camera", "oblique"], "--camera is unused with --no-sweep"),
+    (["--out", "r.html", "--no-sweep", "--smooth-edges"], "--smooth-edges is unused with --no-sweep"),
     (["--out", "r.html", "--waterlines", "5"], "--waterlines applies to --sections"),
     (["--out", "r.html", "--sections", "1"], "at least 2 station intervals"),
     (["--out", "r.html", "--heels", "0:200:5"], "--heels takes angles from 0 to 180"),

@@ -134,3 +134,64 @@ def test_a_failed_sweep_leaves_no_temporary_folder(box_hull, tmp_path, monkeypat
     with pytest.raises(RuntimeError, match="drawing failed"):
         write_sweep(box_hull, tr, str(tmp_path / "review"), view="section")
     assert os.listdir(tmp_path) == []
+
+
+def test_splitting_faces_between_the_coloured_parts_leaves_every_pixel():
+    # the split hands each part (below / above water) only the faces near its side; the renderer's
+    # clipping plane does the cut either way, so the pictures with and without it must be identical
+    from meshhydro.render import Scene
+
+    v, f = cylinder(10.0, 1.5, segments=96)
+    hull = load_hull(tm(v, f))
+    tr = heel_trace(hull, RHO * 0.45 * math.pi * 1.5 ** 2 * 10.0, (5.0, 0.0, 1.2), [0.0, 15.0, 35.0, 70.0])
+    pictures = {}
+    for split in (True, False):
+        scene = Scene(hull, tr, size=(320, 240), split=split)
+        try:
+            pictures[split] = [scene.render(k) for k in range(len(tr.heel))]
+        finally:
+            scene.close()
+    for a, b in zip(pictures[True], pictures[False]):
+        assert a.shape == (240, 320, 3) and a.dtype == np.uint8
+        assert np.array_equal(a, b)
+    assert not np.array_equal(pictures[True][0], pictures[True][3])  # the heel shows
+
+
+def test_smooth_edges_blend_only_along_edges(box_hull):
+    # anti-aliasing (multisampling) changes pixels where colours meet, not the picture: the two renderings
+    # differ in few pixels, and the smooth one has intermediate colours the plain one lacks (common practice)
+    from meshhydro.render import Scene
+
+    tr = heel_trace(box_hull, RHO * 20 * 6 * 1.5, (10.0, 0.0, 2.0), [20.0])
+    out = {}
+    for smooth in (False, True):
+        scene = Scene(box_hull, tr, size=(320, 240), smooth=smooth)
+        try:
+            out[smooth] = scene.render(0).astype(int)
+        finally:
+            scene.close()
+    changed = np.abs(out[True] - out[False]).sum(axis=-1) > 0
+    assert 0 < changed.mean() < 0.1
+    colours = {smooth: len(np.unique(a.reshape(-1, 3), axis=0)) for smooth, a in out.items()}
+    assert colours[True] > colours[False]
+
+
+def test_contact_sheet_and_gif_from_frames():
+    from meshhydro.frame_files import gif_bytes, png_bytes, quantized, sheet_array
+
+    rng = np.random.default_rng(3)
+    frames = [np.full((30, 40, 3), 40 * k, dtype=np.uint8) for k in range(5)]
+    frames[2] = rng.integers(0, 255, (30, 40, 3), dtype=np.uint8)
+    sheet = sheet_array(frames, pad=6)
+    # 5 frames of 40x30: ceil(sqrt(5 * 30 / 40)) = 2 columns, 3 rows, 6 px of white around each
+    assert sheet.shape == (3 * 30 + 4 * 6, 2 * 40 + 3 * 6, 3)
+    assert np.array_equal(sheet[6:36, 52:92], frames[1]) and np.array_equal(sheet[42:72, 6:46], frames[2])
+    assert (sheet[:6] == 255).all() and (sheet[78:, 52:] == 255).all()  # the empty sixth place is white
+    # PNG decodes to the same pixels (lossless; PNG spec, W3C/ISO 15948) with Pillow
+    import io
+
+    assert np.array_equal(np.asarray(Image.open(io.BytesIO(png_bytes(frames[2])))), frames[2])
+    gif = Image.open(io.BytesIO(gif_bytes([quantized(a) for a in frames])))
+    assert gif.n_frames == 5 + 3  # forth and back without repeating the ends
+    with pytest.raises(ValueError, match="at least one frame"):
+        sheet_array([])

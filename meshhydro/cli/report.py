@@ -25,7 +25,8 @@ def _options(args: argparse.Namespace):
                                       what="--sweep-heels")
     else:
         for opt, given in (("--sweep-heels", args.sweep_heels_given), ("--sweep-condition", args.sweep_condition),
-                           ("--camera", args.camera), ("--size", args.size)):
+                           ("--camera", args.camera), ("--size", args.size),
+                           ("--smooth-edges", args.smooth_edges)):
             if given:
                 raise InputError(f"{opt} is unused with --no-sweep (the sweep is left out)")
     if args.sections is not None and args.sections < 2:
@@ -41,7 +42,8 @@ def _options(args: argparse.Namespace):
             raise InputError(f"--kg-limits {args.kg_limits}: displacements must be positive [t]")
     return ReviewOptions(heels=heels, drafts=drafts, criteria=args.set, sweep_heels=sweep,
                          sweep_condition=args.sweep_condition, sweep_size=parse_size(args.size or "800x600"),
-                         camera=args.camera or "astern", stations=args.sections, waterlines=args.waterlines,
+                         camera=args.camera or "astern", smooth_edges=args.smooth_edges, stations=args.sections,
+                         waterlines=args.waterlines,
                          direction=args.direction, kg_limits=kg_limits)
 
 
@@ -102,6 +104,8 @@ def register(sub: argparse._SubParsersAction) -> None:
     r.add_argument("--no-sweep", action="store_true", help="leave the rendered heel sweep out")
     r.add_argument("--camera", choices=("astern", "oblique"), help="sweep camera (default astern)")
     r.add_argument("--size", help="sweep frame size WIDTHxHEIGHT in pixels (default 800x600)")
+    r.add_argument("--smooth-edges", action="store_true",
+                   help="anti-alias the sweep frames (multisampling: about twice the drawing time)")
     r.add_argument("--sections", type=int, metavar="N",
                    help="add the section-based (Simpson) comparison with N station intervals")
     r.add_argument("--waterlines", type=int, default=10, help="waterline intervals of --sections (default 10)")
