@@ -302,30 +302,36 @@ def _merge_extents(a: np.ndarray, b: np.ndarray) -> np.ndarray:
 def _finish(prep: Prepared, p_hull: np.ndarray, n: np.ndarray, d: float, u: np.ndarray, v: np.ndarray,
             o: np.ndarray, sums: np.ndarray, green: np.ndarray, flat: np.ndarray, ext: np.ndarray,
             nseg: int, wseg: np.ndarray | None) -> Cut:
-    """Volume and centroid with the cap cone, waterplane properties, extents: a :class:`Cut`."""
-    a_in = float(green[0])
-    vol = float(sums[0]) / 6.0 + a_in * d / 3.0
-    mom = sums[1:4] / 24.0 + d * (a_in * o + green[1] * u + green[2] * v) / 4.0
+    """Volume and centroid with the cap cone, waterplane properties, extents: a :class:`Cut`.
+
+    Works on Python floats (the same IEEE operations in the same order as on the arrays; on
+    3-vectors numpy's cost per call would outweigh the arithmetic)."""
+    s0, s1, s2, s3 = sums[:4].tolist()
+    ol, ul, vl, org = o.tolist(), u.tolist(), v.tolist(), prep.origin.tolist()
     g = green
+    a_in, g1, g2 = g[:3].tolist()
+    vol = s0 / 6.0 + a_in * d / 3.0
+    mom = [s / 24.0 + d * (a_in * oi + g1 * ui + g2 * vi) / 4.0 for s, oi, ui, vi in zip((s1, s2, s3), ol, ul, vl)]
     if len(flat):  # faces lying in the plane complete the closed waterplane
         g = green + np.array(waterplane_moments(flat, o, u, v))
         if abs(g[0]) <= 1e-13 * max(prep.size, 1e-300) ** 2:
             g = np.zeros(6)
-    a, su, sv, suu, svv, suv = (float(x) for x in g)
+    a, su, sv, suu, svv, suv = g.tolist()
     if a > 0.0:
         cu, cv = su / a, sv / a
-        c_wp = o + cu * u + cv * v + prep.origin
+        c_wp = np.array([oi + cu * ui + cv * vi + ri for oi, ui, vi, ri in zip(ol, ul, vl, org)])
         i_l, i_t, i_uv = suu - a * cu * cu, svv - a * cv * cv, suv - a * cu * cv
     else:
         a, c_wp, i_l, i_t, i_uv = 0.0, p_hull.copy(), 0.0, 0.0, 0.0
     if nseg:
-        lwl, bwl = float(ext[1] - ext[0]), float(ext[3] - ext[2])
-        wx = np.array([ext[4], ext[5]]) + prep.origin[0]
+        e = ext.tolist()
+        lwl, bwl = e[1] - e[0], e[3] - e[2]
+        wx = np.array([e[4] + org[0], e[5] + org[0]])
     else:
         lwl, bwl, wx = 0.0, 0.0, np.array([p_hull[0], p_hull[0]])
     tol = 1e-12 * max(prep.size, 1.0) ** 3
     if vol > tol:
-        centroid = mom / vol + prep.origin
+        centroid = np.array([m / vol + ri for m, ri in zip(mom, org)])
     else:
         vol = max(vol, 0.0)
         centroid = p_hull.copy()

@@ -106,48 +106,54 @@ class Evaluator:
 def residuals(st: State, v0: float, load: Load, L: float) -> np.ndarray:
     """Scaled residuals (3,): relative volume error, transverse and longitudinal levers of B about G over L."""
     c = st.cut
-    bg = c.centroid - load.centre(st.heel, st.trim)
-    return np.array([
-        (c.volume - v0) / v0,
-        bg @ transverse_direction(st.heel) / L,
-        bg @ longitudinal_direction(st.heel, st.trim) / L,
-    ])
+    B, g = c.centroid.tolist(), load.centre(st.heel, st.trim).tolist()
+    bg = (B[0] - g[0], B[1] - g[1], B[2] - g[2])
+    ph, th = math.radians(st.heel), math.radians(st.trim)
+    sp, cp, s_t, ct = math.sin(ph), math.cos(ph), math.sin(th), math.cos(th)
+    # B - G on the earth-horizontal directions across (0, cos φ, -sin φ) and along the hull (as
+    # frames.transverse_direction and frames.longitudinal_direction)
+    return np.array([(c.volume - v0) / v0, (bg[1] * cp - bg[2] * sp) / L,
+                     (bg[0] * ct + bg[1] * (sp * s_t) + bg[2] * (cp * s_t)) / L])
+
+
+def _dot(a: Sequence[float], b: Sequence[float]) -> float:
+    return a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
 
 
 def jacobian(st: State, v0: float, load: Load, K: np.ndarray, L: float) -> np.ndarray:
-    """Jacobian (3, 3) of :func:`residuals` with respect to (depth [m], heel [rad], trim [rad])."""
+    """Jacobian (3, 3) of :func:`residuals` with respect to (depth [m], heel [rad], trim [rad]).
+
+    Exact for the cut: a change dn of the plane's normal (at fixed depth of K) changes the volume by
+    -A (F - K)·dn and its first moment by -P dn - (with P the waterplane's second moments about K,
+    I + A F (F - K)ᵀ), a change of depth by A and A F. Written with plain floats: numpy's cost per call
+    on 3-vectors would be most of the time of a small hull's curve.
+    """
     c = st.cut
-    A, F, V, B = c.waterplane_area, c.waterplane_centroid, max(c.volume, tol.TINY_VOLUME), c.centroid
-    g = load.centre(st.heel, st.trim)
-    dg = load.centre_derivatives(st.heel, st.trim)
-    dn_phi, dn_th = up_derivatives(st.heel, st.trim)
-    et = transverse_direction(st.heel)
-    el = longitudinal_direction(st.heel, st.trim)
+    A, V = c.waterplane_area, max(c.volume, tol.TINY_VOLUME)
+    F, B = c.waterplane_centroid.tolist(), c.centroid.tolist()
+    u, v = c.axis_u.tolist(), c.axis_v.tolist()
+    i_l, i_t, i_uv = c.inertia_l, c.inertia_t, c.inertia_uv
+    g = load.centre(st.heel, st.trim).tolist()
+    dg_phi, dg_th = load.centre_derivatives(st.heel, st.trim).T.tolist()
+    k = K.tolist()
     ph, th = math.radians(st.heel), math.radians(st.trim)
-    det_phi = np.array([0.0, -math.sin(ph), -math.cos(ph)])
-    del_phi = np.array([0.0, math.cos(ph) * math.sin(th), -math.sin(ph) * math.sin(th)])
-    del_th = np.array([-math.sin(th), math.sin(ph) * math.cos(th), math.cos(ph) * math.cos(th)])
-    FK = F - K
-    P = c.inertia_tensor + A * np.outer(F, FK)
-    bg = B - g
-    # columns: depth [m], heel [rad], trim [rad]; Dn (3, 3) the change of the plane normal per unknown
-    Dn = np.zeros((3, 3))
-    Dn[:, 1], Dn[:, 2] = dn_phi, dn_th
-    dV = -(A * FK) @ Dn
-    dV[0] += A
-    dM = -(P @ Dn)
-    dM[:, 0] += A * F
-    dB = (dM - np.outer(B, dV)) / V
-    dB[:, 1:] -= dg
-    Det = np.zeros((3, 3))
-    Det[:, 1] = det_phi
-    Del = np.zeros((3, 3))
-    Del[:, 1], Del[:, 2] = del_phi, del_th
-    out = np.empty((3, 3))
-    out[0] = dV / v0
-    out[1] = (et @ dB + bg @ Det) / L
-    out[2] = (el @ dB + bg @ Del) / L
-    return out
+    sp, cp, s_t, ct = math.sin(ph), math.cos(ph), math.sin(th), math.cos(th)
+    fk = (F[0] - k[0], F[1] - k[1], F[2] - k[2])
+    bg = (B[0] - g[0], B[1] - g[1], B[2] - g[2])
+    et, el = (0.0, cp, -sp), (ct, sp * s_t, cp * s_t)  # earth-horizontal across and along, hull frame
+    # per unknown: the change of the up normal, of G, and of et and el (per rad; depth changes none)
+    columns = (((0.0, cp * ct, -sp * ct), dg_phi, (0.0, -sp, -cp), (0.0, cp * s_t, -sp * s_t)),
+               ((-ct, -sp * s_t, -cp * s_t), dg_th, (0.0, 0.0, 0.0), (-s_t, sp * ct, cp * ct)))
+    rows = [[A / v0], [A * (_dot(et, F) - _dot(et, B)) / (V * L)], [A * (_dot(el, F) - _dot(el, B)) / (V * L)]]
+    for dn, dg, d_et, d_el in columns:
+        f_dn, u_dn, v_dn = _dot(fk, dn), _dot(u, dn), _dot(v, dn)
+        dv = -A * f_dn
+        rows[0].append(dv / v0)
+        for row, e, de in ((rows[1], et, d_et), (rows[2], el, d_el)):
+            eu, ev = _dot(e, u), _dot(e, v)
+            e_dm = -(i_l * eu * u_dn + i_t * ev * v_dn + i_uv * (eu * v_dn + ev * u_dn) + A * _dot(e, F) * f_dn)
+            row.append(((e_dm - _dot(e, B) * dv) / V - _dot(e, dg) + _dot(bg, de)) / L)
+    return np.array(rows)
 
 
 def converged(r: np.ndarray, rows: Sequence[int]) -> bool:
@@ -300,14 +306,42 @@ def _limited_step(ev: Evaluator, dq: np.ndarray, rows: list[int]) -> np.ndarray:
     return dq * scale
 
 
-def _newton_direction(J: np.ndarray, rr: np.ndarray) -> np.ndarray:
-    try:
-        dq = np.linalg.solve(J, -rr)
-        if not np.all(np.isfinite(dq)):
-            raise np.linalg.LinAlgError
-    except np.linalg.LinAlgError:
-        dq = -np.linalg.lstsq(J, rr, rcond=None)[0]
-    return dq
+def _solve_small(m: Sequence[Sequence[float]], b: Sequence[float]) -> list[float] | None:
+    """x with m x = b for a 1×1, 2×2 or 3×3 system by Cramer's rule in plain floats (a LAPACK call costs
+    more than the arithmetic at this size); None when m is singular or x is not finite."""
+    if len(b) == 1:
+        det = m[0][0]
+        x = [b[0] / det] if det else None
+    elif len(b) == 2:
+        det = m[0][0] * m[1][1] - m[0][1] * m[1][0]
+        x = [(b[0] * m[1][1] - m[0][1] * b[1]) / det, (m[0][0] * b[1] - b[0] * m[1][0]) / det] if det else None
+    else:
+        c0 = m[1][1] * m[2][2] - m[1][2] * m[2][1]
+        c1 = m[1][2] * m[2][0] - m[1][0] * m[2][2]
+        c2 = m[1][0] * m[2][1] - m[1][1] * m[2][0]
+        det = m[0][0] * c0 + m[0][1] * c1 + m[0][2] * c2
+        if not det:
+            return None
+        x = [(b[0] * c0 + m[0][1] * (m[1][2] * b[2] - b[1] * m[2][2]) + m[0][2] * (b[1] * m[2][1] - m[1][1] * b[2]))
+             / det,
+             (m[0][0] * (b[1] * m[2][2] - m[1][2] * b[2]) + b[0] * c1 + m[0][2] * (m[1][0] * b[2] - b[1] * m[2][0]))
+             / det,
+             (m[0][0] * (m[1][1] * b[2] - b[1] * m[2][1]) + m[0][1] * (b[1] * m[2][0] - m[1][0] * b[2]) + b[0] * c2)
+             / det]
+    if x is None or not all(math.isfinite(e) for e in x):
+        return None
+    return x
+
+
+def _newton_direction(J: np.ndarray, rows: list[int], r: np.ndarray) -> np.ndarray:
+    """Newton step on the unknowns ``rows`` (0 depth, 1 heel, 2 trim): solves J dq = -r on those rows and
+    columns; least squares where that system is singular."""
+    jl, rl = J.tolist(), r.tolist()
+    m = [[jl[i][j] for j in rows] for i in rows]
+    dq = _solve_small(m, [-rl[i] for i in rows])
+    if dq is None:
+        return -np.linalg.lstsq(np.array(m), np.array([rl[i] for i in rows]), rcond=None)[0]
+    return np.array(dq)
 
 
 def _backtrack(ev: Evaluator, v0: float, load: Load, st: State, dq: np.ndarray, rows: list[int],
@@ -341,9 +375,8 @@ def newton(ev: Evaluator, v0: float, load: Load, start: State, *, free_heel: boo
         if converged(r, rows):
             return NewtonResult(st, True, it - 1, r, J)
         J = jacobian(st, v0, load, ev.K, ev.L)
-        Jf = J[np.ix_(rows, rows)]
         rr = r[rows]
-        dq = _limited_step(ev, _newton_direction(Jf, rr), rows)
+        dq = _limited_step(ev, _newton_direction(J, rows, r), rows)
         accepted = _backtrack(ev, v0, load, st, dq, rows, float(rr @ rr))
         if accepted is None:
             # re-solve the volume alone at the current attitude and continue
@@ -397,13 +430,11 @@ def _tangent(J: np.ndarray, free_trim: bool) -> np.ndarray:
     """(d depth / d heel [m/deg], d trim / d heel [-]) along the solution path from the Jacobian (3, 3)
     of :func:`residuals` at (or next to) a solved state (implicit function theorem; trim free or held)."""
     rows = [0, 2] if free_trim else [0]
-    try:
-        t = np.linalg.solve(J[np.ix_(rows, rows)], -J[rows, 1])
-    except np.linalg.LinAlgError:
+    jl = J.tolist()
+    t = _solve_small([[jl[i][j] for j in rows] for i in rows], [-jl[i][1] for i in rows])
+    if t is None:
         return np.zeros(2)
-    if not np.all(np.isfinite(t)):
-        return np.zeros(2)
-    return np.array([math.radians(float(t[0])), float(t[1]) if free_trim else 0.0])
+    return np.array([math.radians(t[0]), t[1] if free_trim else 0.0])
 
 
 def _extrapolate(ev: Evaluator, v0: float, load: Load, hist: list[State], tangents: dict[int, np.ndarray],
