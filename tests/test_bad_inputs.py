@@ -383,7 +383,17 @@ def test_criteria_angle_beyond_180():
 
 def test_criteria_duplicate_ids():
     assert criteria_error({"id": "A", "kind": "gm", "minimum": 0.15}, {"id": "A", "kind": "gm", "minimum": 1}) == \
-        "set.toml: [criterion 2] id: 'A' is used twice; ids must be unique"
+        ("set.toml: [criterion 2] id: 'A' already names criterion 1, which measures the same; give this limit its "
+         "own id or remove one")
+
+
+def test_criteria_one_clause_may_hold_several_limits():
+    # the IS Code's 2.2.1 sets three area limits under one clause number; the built-in set uses that id
+    # three times and a user file may too (results sharing an id pass together)
+    spec = [{"id": "2.2.1", "kind": "area", "from": 0.0, "to": 30.0, "minimum": 0.055},
+            {"id": "2.2.1", "kind": "area", "from": 0.0, "to": 40.0, "minimum": 0.09},
+            {"id": "2.2.1", "kind": "area", "from": 30.0, "to": 40.0, "minimum": 0.03}]
+    assert [c.id for c in validate_criteria({"criterion": spec}, C).criteria] == ["2.2.1"] * 3
 
 
 def test_criteria_empty():

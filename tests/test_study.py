@@ -290,3 +290,16 @@ def test_study_command_refuses_workers_with_a_scheduler(tmp_path):
                  '[analysis]\ndisplacement = 30.0\nkg = 1.0\n')
     assert main(["study", str(p), "--out", str(tmp_path / "o"), "--workers", "2",
                  "--scheduler", "tcp://127.0.0.1:1"]) == 2
+
+
+def test_shipped_example_study_runs_its_cases():
+    # the example study and its criteria file (three area limits under clause 2.2.1, as the IS Code
+    # numbers them) must run as shipped: first and last case of the grid, no error
+    from meshhydro.schemas import read_toml
+
+    path = os.path.join(ROOT, "meshes", "studies", "twinfin_spacing_kg.toml")
+    cases = expand_cases(validate_study(read_toml(path), path))
+    for case in (cases[0], cases[-1]):
+        row = run_case(case)
+        assert row["error"] == "", row["error"]
+        assert row["verdict"] in ("pass", "fail") and row["max_gz_m"] > 0

@@ -169,17 +169,27 @@ class CriteriaSpec(SchemaTable):
 CRITERIA_ARRAYS = ("criterion",)
 
 
+#: fields that say what a criterion measures; the id, its text and the limits do not
+_NOT_MEASURE = {"id", "text", "minimum", "maximum"}
+
+
 def validate_criteria(data: dict[str, Any], source: str) -> CriteriaSpec:
-    """Validate a criteria file read from TOML into a :class:`CriteriaSpec` (ids unique; default ids
-    are the positions counted from 1)."""
+    """Validate a criteria file read from TOML into a :class:`CriteriaSpec` (default ids are the positions
+    counted from 1).
+
+    An id may hold several limits, as a clause of a code does (the three areas of the IS Code's 2.2.1):
+    results sharing an id pass together. Two entries under one id that measure the same thing (the same
+    kind and parameters, only the text or limits differing) are refused: one of them is a slip."""
     spec: CriteriaSpec = validate(CriteriaSpec, data, source, CRITERIA_ARRAYS)
     items = []
-    seen: set[str] = set()
+    seen: dict[tuple[str, str], int] = {}
     for k, c in enumerate(spec.criteria):
         cid = c.id or str(k + 1)
-        if cid in seen:
-            raise fail(source, ["criterion", k, "id"], f"{cid!r} is used twice; ids must be unique", CRITERIA_ARRAYS)
-        seen.add(cid)
+        what = repr(sorted((f, v) for f, v in c.model_dump().items() if f not in _NOT_MEASURE))
+        if (cid, what) in seen:
+            raise fail(source, ["criterion", k, "id"], f"{cid!r} already names criterion {seen[cid, what] + 1}, "
+                       "which measures the same; give this limit its own id or remove one", CRITERIA_ARRAYS)
+        seen[cid, what] = k
         items.append(c if c.id else c.model_copy(update={"id": cid}))
     return spec.model_copy(update={"criteria": items})
 
