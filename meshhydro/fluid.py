@@ -15,7 +15,9 @@ from typing import Any, Mapping, Sequence
 import numpy as np
 
 from .errors import InputError
-from .tanks import UP_UPRIGHT, Tank, TankState, checked_state, tank_state, unit_vertical
+from .kernel_level import LevelSet, family_axes
+from .tanks import (LEVEL_MAX_CUTS, LEVEL_VOLUME_RTOL, UP_UPRIGHT, Tank, TankState, checked_state, tank_state,
+                    unit_vertical)
 
 
 @dataclass(frozen=True)
@@ -50,8 +52,9 @@ class _Warm:
 
 def _angle(a: np.ndarray, b: np.ndarray) -> float:
     """Angle [rad] between unit vectors (3,), exact for small angles."""
-    d, s = a - b, a + b
-    return float(2.0 * math.atan2(math.sqrt(float(d @ d)), math.sqrt(float(s @ s))))
+    (a0, a1, a2), (b0, b1, b2) = a.tolist(), b.tolist()
+    d0, d1, d2, s0, s1, s2 = a0 - b0, a1 - b1, a2 - b2, a0 + b0, a1 + b1, a2 + b2
+    return 2.0 * math.atan2(math.sqrt(d0 * d0 + d1 * d1 + d2 * d2), math.sqrt(s0 * s0 + s1 * s1 + s2 * s2))
 
 
 class FluidLoad:
@@ -80,6 +83,7 @@ class FluidLoad:
         self.cuts = 0
         self._warm: list[_Warm | None] = [None] * len(self.tanks)
         self._upright: list[TankState] | None = None
+        self._set: _SlackSet | None = None
 
     @classmethod
     def from_fills(cls, tanks: Sequence[Tank], fills: Mapping[str, float]) -> "FluidLoad":
@@ -98,16 +102,34 @@ class FluidLoad:
     def states(self, up: Any) -> list[TankState]:
         """Every tank's fluid at attitude ``up`` (3,) [hull frame]."""
         n = unit_vertical(up)
+        axes = family_axes(n)  # the planes' axes, the same for every tank at this attitude
         out = []
         for i, (t, v) in enumerate(zip(self.tanks, self.volumes)):
             w = self._warm[i]
             tilt = 0.0 if w is None else _angle(w.normal, n)
-            st = checked_state(t, n, v, None if w is None else w.guess(n, tilt))  # n, v checked already
+            st = checked_state(t, n, v, None if w is None else w.guess(n, tilt), axes)  # n, v checked already
             if st.cuts:
                 self._warm[i] = _Warm.after(w, st, tilt)
             self.cuts += st.cuts
             out.append(st)
         return out
+
+    def levelled(self, up: Any) -> tuple[np.ndarray, np.ndarray]:
+        """(Σ mass · centroid (3,) [t·m], Σ ρ J (3, 3) [t·m]) at attitude ``up`` (3,), hull frame: what a
+        load needs of :meth:`states` (J each free surface's second-moment tensor about its centroid),
+        with every slack tank levelled in one compiled call (:class:`meshhydro.kernel_level.LevelSet`;
+        tank by tank through :meth:`states` where that is not available)."""
+        if self._set is None:
+            self._set = _SlackSet(self.tanks, self.volumes)
+        if not self._set.levels.usable:
+            mom, rho_j = np.zeros(3), np.zeros((3, 3))
+            for t, st in zip(self.tanks, self.states(up)):
+                mom += st.mass * st.centroid
+                rho_j += t.density * st.inertia_tensor
+            return mom, rho_j
+        mom, rho_j, cuts = self._set.at(unit_vertical(up))
+        self.cuts += cuts
+        return mom, rho_j
 
     def moment(self, up: Any) -> np.ndarray:
         """Σ mass · centroid (3,) [t·m], hull frame, at attitude ``up``."""
@@ -138,3 +160,70 @@ class FluidLoad:
     def fsm_upright_longitudinal(self) -> float:
         """Σ ρ i_l [t·m]: the longitudinal free-surface moment of the upright fills."""
         return float(sum(t.density * s.i_l for t, s in zip(self.tanks, self.upright_states())))
+
+
+class _SlackSet:
+    """The slack tanks of a :class:`FluidLoad` levelled together (full and empty ones add a fixed
+    moment and no free surface), warm-started from their surfaces at the previous call: as
+    :class:`_Warm`, with the normal and tilt shared, since all are levelled at every call."""
+
+    def __init__(self, tanks: Sequence[Tank], volumes: Sequence[float]) -> None:
+        slack = [i for i, (t, v) in enumerate(zip(tanks, volumes)) if 0.0 < v < t.capacity]
+        self.tanks = [tanks[i] for i in slack]
+        self.levels = LevelSet([t.prepared for t in self.tanks])
+        self.volumes = np.array([volumes[i] for i in slack])
+        self.caps = np.array([t.capacity for t in self.tanks])
+        self.tols = LEVEL_VOLUME_RTOL * self.caps
+        self.mass = np.array([t.density for t in self.tanks]) * self.volumes  # (m,) [t]
+        self.rho = np.array([t.density for t in self.tanks])
+        self.fixed = np.zeros(3)  # full tanks: Σ mass · centroid [t·m]; empty ones add nothing
+        for t, v in zip(tanks, volumes):
+            if v == t.capacity:
+                self.fixed = self.fixed + t.density * v * t.centroid_full
+        self.points: np.ndarray | None = None  # (m, 3) last surface centroids [m]
+        self.normal = np.zeros(3)
+        self.shift = np.zeros(len(self.tanks))
+        self.tilt = 0.0
+
+    def _start(self, n: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, float]:
+        """(s0, lo, hi) of the searches (centred frames) and the tilt [rad] since the last call."""
+        lo, hi = self.levels.extents(n)
+        if self.points is None:
+            return lo + (hi - lo) * self.volumes / self.caps, lo, hi, 0.0
+        tilt = _angle(self.normal, n)
+        pts = self.points
+        if self.tilt > 0.0 and tilt > 0.0:
+            pts = pts + (min((tilt / self.tilt) ** 2, 4.0) * self.shift)[:, None] * n
+        return np.einsum("ij,j->i", pts - self.levels.origins, n), lo, hi, tilt
+
+    def at(self, n: np.ndarray) -> tuple[np.ndarray, np.ndarray, int]:
+        """(Σ mass · centroid (3,), Σ ρ J (3, 3), cuts taken) at the unit vertical ``n``."""
+        if not self.tanks:
+            return self.fixed.copy(), np.zeros((3, 3)), 0
+        axes = family_axes(n)
+        s0, lo, hi, tilt = self._start(n)
+        f = self.levels.levels(axes, n, self.volumes, self.caps, s0, lo, hi, self.tols, LEVEL_MAX_CUTS)
+        alone = np.flatnonzero(f["cuts"] <= 0)
+        for i in alone:  # a plane on faces of the tank, or no convergence: level it alone
+            st = checked_state(self.tanks[i], n, float(self.volumes[i]), None, axes)
+            for key, val in (("centroid", st.centroid), ("waterplane_centroid", st.level_point),
+                             ("inertia_t", st.i_t), ("inertia_l", st.i_l),
+                             ("inertia_uv", _uv_moment(st, axes))):
+                f[key][i] = val
+            f["cuts"][i] = st.cuts
+        c_wp = f["waterplane_centroid"]
+        if self.points is not None:
+            self.shift = (c_wp - self.points) @ n
+            self.tilt = tilt
+        self.points, self.normal = c_wp, n
+        mom = self.fixed + self.mass @ f["centroid"]
+        _, u, v = axes
+        il, it, iuv = self.rho @ f["inertia_l"], self.rho @ f["inertia_t"], self.rho @ f["inertia_uv"]
+        rho_j = il * np.outer(u, u) + it * np.outer(v, v) + iuv * (np.outer(u, v) + np.outer(v, u))
+        return mom, rho_j, int(np.abs(f["cuts"]).sum())
+
+
+def _uv_moment(st: TankState, axes: tuple[np.ndarray, np.ndarray, np.ndarray]) -> float:
+    """The product moment ∫ u v dA [m⁴] of a state's free surface on the axes u, v."""
+    _, u, v = axes
+    return float(u @ st.inertia_tensor @ v)

@@ -207,6 +207,97 @@ def _sweep(gc, gh, gs, lc, lh, ls, data, fidx, G, n, d, tol, cull, o, u, v, want
     return sums, green, ext, segs[:nseg if want else 0], sfaces[:nseg if want else 0], nseg, flat[:nflat]
 
 
+@njit(cache=True, nogil=True)
+def _level_search(gc, gh, gs, lc, lh, ls, data, fidx, G, n, up, u, v, origin, bound, rounding, volume,
+                  capacity, s, a, b, tol, vol_floor, max_cuts):  # pragma: no cover - compiled
+    """The level search of :func:`meshhydro.tanks.level_probe` in one compiled loop: safeguarded
+    Newton on the plane offset s (the plane through ``origin + s up``, unit normal ``n``), each trial
+    plane cut by :func:`_sweep` and its volume formed as ``kernel._finish`` forms it.
+
+    Returns (k, s, d, sums, green): k the cuts taken, negative when the k-th plane lies on faces of
+    the mesh (the caller takes the full path), 0 when ``max_cuts`` did not reach the volume."""
+    va, vb = 0.0, capacity
+    prev_side = 0
+    o = np.empty(3)
+    sums = np.zeros(5)
+    green = np.zeros(6)
+    d = 0.0
+    for k in range(1, max_cuts + 1):
+        if not a < s < b:
+            s = 0.5 * (a + b)
+        # the plane through origin + s n, as kernel.cut measures it from the centred origin
+        d = n[0] * ((origin[0] + s * up[0]) - origin[0]) + n[1] * ((origin[1] + s * up[1]) - origin[1]) \
+            + n[2] * ((origin[2] + s * up[2]) - origin[2])
+        for j in range(3):
+            o[j] = d * n[j]
+        sums, green, _, _, _, _, flat = _sweep(gc, gh, gs, lc, lh, ls, data, fidx, G, n, d,
+                                               rounding * (bound + abs(d)), True, o, u, v, False)
+        if flat.shape[0] > 0:
+            return -k, s, d, sums, green
+        vol = sums[0] / 6.0 + green[0] * d / 3.0
+        if not vol > vol_floor:
+            vol = max(vol, 0.0)
+        r = vol - volume
+        if abs(r) <= tol:
+            return k, s, d, sums, green
+        side = 1 if r > 0 else -1
+        if side > 0:
+            b, vb = s, vol
+        else:
+            a, va = s, vol
+        area = green[0] if green[0] > 0.0 else 0.0
+        nxt = s - r / area if area > 0.0 else np.nan
+        if not a < nxt < b:
+            # false position; bisection when the same end moved twice in a row
+            nxt = 0.5 * (a + b) if side == prev_side else a + (b - a) * (volume - va) / (vb - va)
+        prev_side = side
+        s = nxt
+    return 0, s, d, sums, green
+
+
+@njit(cache=True, nogil=True)
+def _level_set(gc, gh, gs, lc, lh, ls, data, fidx, g_off, l_off, G, origins, bounds, floors, n, up, u, v,
+               rounding, volumes, caps, s0, lo, hi, tols, max_cuts):  # pragma: no cover - compiled
+    """:func:`_level_search` for several meshes at one attitude, each fluid's fields formed as
+    ``kernel._finish`` forms them (a plane without faces in it; the same operations in the same
+    order). Mesh t's blocks are the rows ``g_off[t]:g_off[t + 1]`` of the group arrays and
+    ``l_off[t]:l_off[t + 1]`` of the leaf arrays. Returns per mesh: cuts (as k of
+    :func:`_level_search`), volume, centroid (3), waterplane area, its centroid (3), i_l, i_t, i_uv."""
+    nt = volumes.shape[0]
+    ks = np.zeros(nt, np.int64)
+    vol = np.zeros(nt)
+    cen = np.zeros((nt, 3))
+    area = np.zeros(nt)
+    cwp = np.zeros((nt, 3))
+    inert = np.zeros((nt, 3))  # i_l, i_t, i_uv
+    for t in range(nt):
+        g0, g1, l0, l1 = g_off[t], g_off[t + 1], l_off[t], l_off[t + 1]
+        k, s, d, sm, g = _level_search(gc[g0:g1], gh[g0:g1], gs[g0:g1], lc[l0:l1], lh[l0:l1], ls[l0:l1],
+                                       data[l0:l1], fidx[l0:l1], G, n, up, u, v, origins[t], bounds[t], rounding,
+                                       volumes[t], caps[t], s0[t], lo[t], hi[t], tols[t], floors[t], max_cuts)
+        ks[t] = k
+        a = g[0]
+        vt = sm[0] / 6.0 + a * d / 3.0
+        if not vt > floors[t]:
+            vt = max(vt, 0.0)
+        vol[t] = vt
+        for j in range(3):
+            p = origins[t, j] + s * up[j]
+            if vt > floors[t]:
+                o = d * n[j]
+                cen[t, j] = (sm[1 + j] / 24.0 + d * (a * o + g[1] * u[j] + g[2] * v[j]) / 4.0) / vt + origins[t, j]
+            else:
+                cen[t, j] = p
+            cwp[t, j] = p
+        if a > 0.0:
+            cu, cv = g[1] / a, g[2] / a
+            for j in range(3):
+                cwp[t, j] = d * n[j] + cu * u[j] + cv * v[j] + origins[t, j]
+            area[t] = a
+            inert[t, 0], inert[t, 1], inert[t, 2] = g[3] - a * cu * cu, g[4] - a * cv * cv, g[5] - a * cu * cv
+    return ks, vol, cen, area, cwp, inert
+
+
 def sweep(prep: Prepared, n: np.ndarray, d: float, o: np.ndarray, u: np.ndarray, v: np.ndarray, *,
           cull: bool = True, segments: bool = False) -> PassResult:
     """Run the compiled pass for the plane ``n . x = d`` (centred frame); see :class:`PassResult`."""

@@ -13,12 +13,15 @@ the numpy backend take the full path at once.
 """
 from __future__ import annotations
 
+from typing import Sequence
+
 import numpy as np
 
 from . import kernel, kernel_compiled
 from .kernel_clip import plane_axes
+from .kernel_prep import ROUNDING
 
-__all__ = ["Level", "PlaneFamily", "Probe"]
+__all__ = ["Level", "LevelSet", "PlaneFamily", "Probe", "family_axes"]
 
 
 class Level:
@@ -53,6 +56,14 @@ class Probe:
         self._cut = cut
 
 
+def family_axes(normal: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(unit normal, u, v) of the planes with ``normal``: normalised and with in-plane axes exactly as
+    :func:`kernel.cut` forms them."""
+    n = kernel.unit_normal(normal)
+    u, v = plane_axes(n)
+    return n, u, v
+
+
 class PlaneFamily:
     """Planes with one normal through one prepared mesh (hull frame, m).
 
@@ -63,13 +74,15 @@ class PlaneFamily:
         Upward normal, normalised here exactly as :func:`kernel.cut` does.
     backend : {"compiled", "numpy"}, optional
         As in :func:`kernel.cut`; the numpy pass always takes the full cut.
+    axes : (unit normal, u, v), optional
+        :func:`family_axes` of ``normal``, when several meshes are cut at one attitude.
     """
 
-    def __init__(self, prep: kernel.Prepared, normal: np.ndarray, *, backend: str | None = None) -> None:
+    def __init__(self, prep: kernel.Prepared, normal: np.ndarray, *, backend: str | None = None,
+                 axes: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None) -> None:
         self.prep = prep
-        self.given = normal
-        self.normal = kernel.unit_normal(normal)
-        self.u, self.v = plane_axes(self.normal)
+        self.given = np.asarray(normal, dtype=np.float64)
+        self.normal, self.u, self.v = family_axes(normal) if axes is None else axes
         self.backend = backend
         self.lean = kernel.resolve_backend(backend) == "compiled"
         self._tol = 1e-12 * max(prep.size, 1.0) ** 3
@@ -103,6 +116,31 @@ class PlaneFamily:
             vol = max(vol, 0.0)
         return Probe(float(vol), a_in if a_in > 0.0 else 0.0, (p_hull, d, o, r), None)
 
+    def search(self, volume: float, capacity: float, s: float, a: float, b: float, tol: float,
+               max_cuts: int) -> tuple[Probe, int] | None:
+        """The level search of :func:`meshhydro.tanks.level_probe` run as one compiled loop: planes
+        through ``origin + s given`` from ``s`` in the bracket (a, b), until the volume below is
+        within ``tol`` [m³] of ``volume``. Returns (the probe of that plane, cuts taken), or None
+        where the loop cannot answer (the numpy backend, a plane lying on faces of the mesh, no
+        convergence in ``max_cuts``): the caller then searches plane by plane."""
+        if not self.lean or len(self.prep.rim):
+            return None
+        prep = self.prep
+        k, s, d, sums, green = kernel_compiled._level_search(
+            *self._blocks, self.normal, self.given, self.u, self.v, prep.origin,
+            prep.coord_bound, ROUNDING, float(volume), float(capacity), float(s), float(a), float(b), float(tol),
+            self._tol, int(max_cuts))
+        if k <= 0:
+            return None
+        a_in = float(green[0])
+        vol = float(sums[0]) / 6.0 + a_in * d / 3.0
+        if not vol > self._tol:
+            vol = max(vol, 0.0)
+        p_hull = prep.origin + s * self.given
+        # the loop keeps the sums and moments of its last plane, not its extents: cut() sweeps it again
+        return Probe(float(vol), a_in if a_in > 0.0 else 0.0, (p_hull, d, d * self.normal, (sums, green)), None), \
+            int(k)
+
     def level(self, probe: Probe) -> "Level | kernel.Cut":
         """The fluid fields of a probe (a :class:`Level`, or the whole cut where it is at hand),
         formed as in ``kernel._finish`` (a plane without faces lying in it)."""
@@ -111,8 +149,9 @@ class PlaneFamily:
         p_hull, d, o, r = probe._pass
         u, v, org = self.u.tolist(), self.v.tolist(), self.prep.origin.tolist()
         oo = o.tolist()
-        _, s1, s2, s3, _ = r.sums.tolist()
-        a, su, sv, suu, svv, suv = r.green.tolist()
+        sums, green = (r.sums, r.green) if isinstance(r, kernel_compiled.PassResult) else r
+        _, s1, s2, s3, _ = sums.tolist()
+        a, su, sv, suu, svv, suv = green.tolist()
         vol = probe.volume
         # per element, the same operations in the same order as kernel._finish's array expressions
         if vol > self._tol:
@@ -132,5 +171,59 @@ class PlaneFamily:
         """The whole :class:`~meshhydro.kernel.Cut` of a probe of this family."""
         if probe._cut is None:
             p_hull, d, o, r = probe._pass
+            if not isinstance(r, kernel_compiled.PassResult):  # from search(): the plane's whole pass again
+                r = kernel_compiled.sweep(self.prep, self.normal, d, o, self.u, self.v)
             probe._cut = kernel.finish_compiled(self.prep, p_hull, self.normal, d, self.u, self.v, o, r, False)
         return probe._cut
+
+
+class LevelSet:
+    """Several closed meshes (a condition's slack tanks) levelled at one attitude in one compiled call.
+
+    Their blocks are concatenated once; :meth:`levels` runs the level search of
+    :meth:`PlaneFamily.search` for every mesh and forms each fluid's fields as ``kernel._finish``
+    does. ``usable`` is False where that cannot be done (the numpy backend, an open mesh, meshes
+    prepared with different block sizes): the caller then levels mesh by mesh.
+    """
+
+    def __init__(self, preps: Sequence[kernel.Prepared]) -> None:
+        self.preps = tuple(preps)
+        self.usable = bool(self.preps) and kernel.resolve_backend(None) == "compiled" and all(
+            len(p.rim) == 0 and p.group_size == self.preps[0].group_size and p.data.shape[1:] ==
+            self.preps[0].data.shape[1:] for p in self.preps)
+        if not self.usable:
+            return
+        ps = self.preps
+        cat = np.concatenate
+        self._arrays = (cat([p.group_center for p in ps]), cat([p.group_half for p in ps]),
+                        cat([p.group_sums for p in ps]), cat([p.leaf_center for p in ps]),
+                        cat([p.leaf_half for p in ps]), cat([p.leaf_sums for p in ps]), cat([p.data for p in ps]),
+                        cat([p.face_index for p in ps]))
+        self._g_off = np.cumsum([0] + [len(p.group_center) for p in ps]).astype(np.int64)
+        self._l_off = np.cumsum([0] + [len(p.leaf_center) for p in ps]).astype(np.int64)
+        self.origins = np.array([p.origin for p in ps])  # (m, 3) [m]
+        self._bounds = np.array([p.coord_bound for p in ps])
+        self._floors = np.array([1e-12 * max(p.size, 1.0) ** 3 for p in ps])
+        self._verts = cat([p.vertices for p in ps])  # centred, per mesh
+        self._v_off = np.cumsum([0] + [len(p.vertices) for p in ps])[:-1]
+
+    def extents(self, up: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Least and greatest ``up . x`` (m,) [m] over each mesh's vertices (centred frames)."""
+        s = self._verts @ up
+        return np.minimum.reduceat(s, self._v_off), np.maximum.reduceat(s, self._v_off)
+
+    def levels(self, axes: tuple[np.ndarray, np.ndarray, np.ndarray], up: np.ndarray, volumes: np.ndarray,
+               caps: np.ndarray, s0: np.ndarray, lo: np.ndarray, hi: np.ndarray, tols: np.ndarray,
+               max_cuts: int) -> dict[str, np.ndarray]:
+        """Level every mesh at the vertical ``up`` (axes from :func:`family_axes`): planes through
+        ``origin + s up`` from ``s0`` in (lo, hi) until the volume below is within ``tols`` [m³] of
+        ``volumes``. Returns arrays per mesh: ``cuts`` (int; 0 or negative where the mesh must be
+        levelled alone), ``volume``, ``centroid`` (m, 3), ``waterplane_area``, ``waterplane_centroid``
+        (m, 3), ``inertia_t``, ``inertia_l``, ``inertia_uv`` (hull frame, SI)."""
+        n, u, v = axes
+        ks, vol, centroid, area, c_wp, inert = kernel_compiled._level_set(
+            *self._arrays, self._g_off, self._l_off, self.preps[0].group_size, self.origins, self._bounds,
+            self._floors, n, up, u, v, ROUNDING, volumes, caps, s0, lo, hi, tols, int(max_cuts))
+        return {"cuts": ks, "volume": vol, "centroid": centroid, "waterplane_area": area,
+                "waterplane_centroid": c_wp, "inertia_l": inert[:, 0], "inertia_t": inert[:, 1],
+                "inertia_uv": inert[:, 2]}

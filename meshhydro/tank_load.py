@@ -73,12 +73,8 @@ class TankLoad:
         hit = self._cache.get(key)
         if hit is not None:
             return hit
-        mom = self._solid.copy()
-        rho_j = np.zeros((3, 3))
-        for t, st in zip(self.fluid.tanks, self.fluid.states(up_vector(*key))):
-            mom += st.mass * st.centroid
-            rho_j += t.density * st.inertia_tensor
-        out = (mom / self.displacement, rho_j)
+        mom, rho_j = self.fluid.levelled(up_vector(*key))
+        out = ((self._solid + mom) / self.displacement, rho_j)
         if len(self._cache) >= CACHE_SIZE:
             self._cache.pop(next(iter(self._cache)))
         self._cache[key] = out

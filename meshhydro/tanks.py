@@ -364,9 +364,11 @@ def solve_level(prep: kernel.Prepared, up: np.ndarray, volume: float, *, capacit
 
 
 def level_probe(prep: kernel.Prepared, up: np.ndarray, volume: float, *, capacity: float,
-                guess: np.ndarray | None = None, name: str = "tank") -> tuple[PlaneFamily, Probe, int]:
+                guess: np.ndarray | None = None, name: str = "tank",
+                axes: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None) -> tuple[PlaneFamily, Probe, int]:
     """:func:`solve_level` without finishing the whole cut: the plane family, the probe that
-    holds the volume, and the cuts taken (``planes.level(probe)`` gives the fluid's fields)."""
+    holds the volume, and the cuts taken (``planes.level(probe)`` gives the fluid's fields).
+    ``axes``: :func:`meshhydro.kernel_level.family_axes` of ``up`` when already formed."""
     n = up
     s_all = (prep.vertices @ n).tolist()
     a, b = min(s_all), max(s_all)
@@ -377,7 +379,10 @@ def level_probe(prep: kernel.Prepared, up: np.ndarray, volume: float, *, capacit
         s = a + (b - a) * volume / capacity
     tol = LEVEL_VOLUME_RTOL * capacity
     prev_side = 0
-    planes = PlaneFamily(prep, n)  # lean cuts: the same numbers as kernel.cut, whole cut at the end
+    planes = PlaneFamily(prep, n, axes=axes)  # lean cuts: the same numbers as kernel.cut, whole cut at the end
+    found = planes.search(volume, capacity, s, a, b, tol, LEVEL_MAX_CUTS)  # the loop below, compiled
+    if found is not None:
+        return planes, found[0], found[1]
     for k in range(1, LEVEL_MAX_CUTS + 1):
         if not a < s < b:
             s = 0.5 * (a + b)
@@ -407,10 +412,12 @@ def _extreme(tank: Tank, n: np.ndarray, top: bool) -> np.ndarray:
 
 
 def surface_tensor(c: Any) -> np.ndarray:
-    """The cut's waterplane second-moment tensor (3, 3) [m⁴] about its centroid, hull frame
-    (the same as ``c.inertia_tensor``, in one small product)."""
-    m = np.array([c.axis_u, c.axis_v])
-    return m.T @ np.array([[c.inertia_l, c.inertia_uv], [c.inertia_uv, c.inertia_t]]) @ m
+    """The cut's waterplane second-moment tensor (3, 3) [m⁴] about its centroid, hull frame: the same
+    as ``c.inertia_tensor``, i_l u uᵀ + i_t v vᵀ + i_uv (u vᵀ + v uᵀ), in plain floats."""
+    u, v = c.axis_u.tolist(), c.axis_v.tolist()
+    i_l, i_t, i_uv = c.inertia_l, c.inertia_t, c.inertia_uv
+    return np.array([[i_l * u[i] * u[j] + i_t * v[i] * v[j] + i_uv * (u[i] * v[j] + v[i] * u[j]) for j in range(3)]
+                     for i in range(3)])
 
 
 def tank_state(tank: Tank, up: Any, volume: float, *, guess: np.ndarray | None = None) -> TankState:
@@ -425,15 +432,18 @@ def tank_state(tank: Tank, up: Any, volume: float, *, guess: np.ndarray | None =
     return checked_state(tank, n, vol, guess)
 
 
-def checked_state(tank: Tank, n: np.ndarray, vol: float, guess: np.ndarray | None) -> TankState:
-    """:func:`tank_state` for a unit vertical ``n`` (3,) and a volume already checked to lie in 0..capacity."""
+def checked_state(tank: Tank, n: np.ndarray, vol: float, guess: np.ndarray | None,
+                  axes: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None) -> TankState:
+    """:func:`tank_state` for a unit vertical ``n`` (3,) and a volume already checked to lie in 0..capacity
+    (``axes``: :func:`meshhydro.kernel_level.family_axes` of ``n`` when already formed)."""
     if vol == 0.0 or vol == tank.capacity:
         full = vol == tank.capacity
         lp = _extreme(tank, n, top=full)
         cen = tank.centroid_full.copy() if full else lp.copy()
         return TankState(tank.name, vol, tank.density * vol, cen, 0.0, 0.0, 0.0, n, lp,
                          float(n @ (lp - tank.sounding_point)), 0)
-    planes, probe, k = level_probe(tank.prepared, n, vol, capacity=tank.capacity, guess=guess, name=tank.name)
+    planes, probe, k = level_probe(tank.prepared, n, vol, capacity=tank.capacity, guess=guess, name=tank.name,
+                                   axes=axes)
     c = planes.level(probe)
     lp = c.waterplane_centroid
     return TankState(tank.name, vol, tank.density * vol, c.centroid, c.waterplane_area, c.inertia_t,

@@ -82,3 +82,65 @@ def test_unit_normal_scales_then_normalises():
         m = n / np.abs(n).max()
         ref = m / np.sqrt(m[0] * m[0] + m[1] * m[1] + m[2] * m[2])
         np.testing.assert_array_equal(kernel.unit_normal(n), ref)
+
+
+def _l_tank():
+    """An L-shaped tank (profile in x-z extruded 1 m along y): a shelf face at z = 1 for 1 < x < 2."""
+    import trimesh
+    from shapely.geometry import Polygon
+
+    from meshhydro.tanks import make_tank
+
+    m = trimesh.creation.extrude_polygon(Polygon([(0, 0), (2, 0), (2, 1), (1, 1), (1, 2), (0, 2)]), 1.0)
+    return make_tank("L", m.vertices[:, [0, 2, 1]].copy(), m.faces[:, ::-1].copy(), density=1.0, source="test")
+
+
+def test_level_set_flags_a_plane_on_faces():
+    # levelling several tanks in one compiled call must hand back, not settle, a plane lying on faces
+    # (the shelf of an L-shaped tank at z = 1, centred 0): the plane-by-plane search handles those
+    from meshhydro.kernel_level import LevelSet, family_axes
+    from meshhydro.tanks import LEVEL_VOLUME_RTOL, UP_UPRIGHT
+
+    t = _l_tank()
+    assert t.capacity == pytest.approx(3.0, abs=1e-12)  # 2 x 1 + 1 x 1 in profile, 1 m deep (geometry)
+    ls = LevelSet([t.prepared])
+    n = np.array(UP_UPRIGHT, float)
+    lo, hi = ls.extents(n)
+    caps = np.array([t.capacity])
+    out = ls.levels(family_axes(n), n, np.array([2.0]), caps, np.array([0.0]), lo, hi, LEVEL_VOLUME_RTOL * caps, 60)
+    assert out["cuts"][0] < 0
+    out = ls.levels(family_axes(n), n, np.array([2.5]), caps, lo + 0.25 * (hi - lo), lo, hi,
+                    LEVEL_VOLUME_RTOL * caps, 60)
+    assert out["cuts"][0] > 0 and out["volume"][0] == pytest.approx(2.5, abs=1e-9)
+    # above the shelf the surface is the 1 x 1 upper leg: level z = 1.5, centroid z = (2 * 0.5 + 0.5 * 1.25) / 2.5
+    assert out["waterplane_area"][0] == pytest.approx(1.0, abs=1e-12)
+    assert out["centroid"][0][2] == pytest.approx((2.0 * 0.5 + 0.5 * 1.25) / 2.5, abs=1e-9)
+
+
+@pytest.mark.parametrize("cap_cuts", [None, 1])
+def test_tanks_levelled_together_equal_tank_by_tank(monkeypatch, cap_cuts):
+    # the load's fluid moment and Σ ρ J from one compiled call against the same sums of per-tank states
+    # (each state checked against kernel.cut above); cap_cuts = 1 makes every joint search give up, so
+    # the per-tank fallback is what is compared
+    from meshhydro import fluid as fluid_module
+    from meshhydro.fluid import FluidLoad
+    from meshhydro.frames import up_vector
+
+    if cap_cuts is not None:
+        monkeypatch.setattr(fluid_module, "LEVEL_MAX_CUTS", cap_cuts)
+    tanks = [tank_from_box("a", [[0.0, 0.0, 0.0], [3.0, 2.0, 1.5]], density=1.025),
+             tank_from_box("b", [[4.0, -2.0, 0.2], [5.0, 2.0, 2.2]], density=0.85),
+             tank_from_box("full", [[6.0, -1.0, 0.0], [7.0, 1.0, 1.0]], density=1.0), _l_tank()]
+    fills = {"a": 0.4, "b": 0.73, "full": 1.0, "L": 2.0 / 3.0}
+    joint, single = FluidLoad.from_fills(tanks, fills), FluidLoad.from_fills(tanks, fills)
+    rng = np.random.default_rng(5)
+    for heel, trim in [(0.0, 0.0)] + [(float(h), float(t)) for h, t in zip(rng.uniform(-170, 170, 25),
+                                                                            rng.uniform(-20, 20, 25))]:
+        up = up_vector(heel, trim)
+        mom, rho_j = joint.levelled(up)
+        ref_m, ref_j = np.zeros(3), np.zeros((3, 3))
+        for t, st in zip(tanks, single.states(up)):
+            ref_m += st.mass * st.centroid
+            ref_j += t.density * st.inertia_tensor
+        np.testing.assert_allclose(mom, ref_m, rtol=0, atol=1e-9 * np.abs(ref_m).max())
+        np.testing.assert_allclose(rho_j, ref_j, rtol=0, atol=1e-9 * max(np.abs(ref_j).max(), 1e-12))
