@@ -126,7 +126,7 @@ def kg_limits(kn_curve_provider: Callable[[float], KNCurve], displacements: Sequ
               evaluate_margins: Callable[[KNCurve, float], Margins], *, kg_range: tuple[float, float],
               exact_margins: Callable[[float, float], Margins] | None = None,
               gm_at: Callable[[KNCurve, float], float | None] | None = None,
-              steps: int = 40, xtol: float = 1e-6) -> list[KGLimitRow]:
+              steps: int = 40, xtol: float = 1e-6, progress: Callable[[], Any] | None = None) -> list[KGLimitRow]:
     """KG limit rows for each displacement [t].
 
     Parameters
@@ -138,6 +138,7 @@ def kg_limits(kn_curve_provider: Callable[[float], KNCurve], displacements: Sequ
         refine where the KN curve trims (see the module docstring). Without it such
         points raise InputError rather than return a value that may be wrong.
     gm_at : (KNCurve, kg) -> GM [m] at the limit (default km − kg)
+    progress : called once per displacement done
     """
     rows = []
     lo, hi = float(kg_range[0]), float(kg_range[1])
@@ -157,6 +158,8 @@ def kg_limits(kn_curve_provider: Callable[[float], KNCurve], displacements: Sequ
         if kg is not None:
             gm = gm_at(kn, kg) if gm_at is not None else (None if kn.km is None else kn.km - kg)
         rows.append(KGLimitRow(float(d), kg, gov, gm, method, note, m))
+        if progress is not None:
+            progress()
     return rows
 
 
@@ -218,7 +221,8 @@ def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any 
                        heels: Sequence[float] | None = None, density: float = 1.025, openings: Sequence[Any] = (),
                        sides: tuple[int, ...] = (1,), weather: dict[str, Any] | None = None, steps: int = 40,
                        xtol: float = 1e-6, wind: Any = None,
-                       heeling_arms: Mapping[str, Any] | None = None) -> list[KGLimitRow]:
+                       heeling_arms: Mapping[str, Any] | None = None,
+                       progress: Callable[[], Any] | None = None) -> list[KGLimitRow]:
     """KG limits of ``hull`` for a criteria set (default IMO 2008 IS Code, Part A, 2.2).
 
     KN comes from one free-trim curve per displacement with G = (lcg, tcg, 0); ``lcg``
@@ -231,6 +235,7 @@ def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any 
     when ``sides`` holds −1); the curves then also cover the port angles. ``wind`` (a
     :class:`meshhydro.weather.WindSetup`) and ``heeling_arms`` (name → HeelingArm) fill the
     criteria context instead, for a set holding the registry's ``weather`` and ``arm_*`` kinds.
+    ``progress`` is called once per displacement done.
     """
     from . import criteria as _crit
 
@@ -289,4 +294,4 @@ def kg_limits_for_hull(hull: Any, displacements: Sequence[float], criteria: Any 
         return curve_at(kn.displacement, kg).gm_upright
 
     return kg_limits(provider, displacements, fast, kg_range=rng, exact_margins=exact, gm_at=gm_at,
-                     steps=steps, xtol=xtol)
+                     steps=steps, xtol=xtol, progress=progress)

@@ -11,7 +11,7 @@ Public: :data:`ROW_KEYS`, :func:`kg_limits_analysis`.
 from __future__ import annotations
 
 import os
-from typing import Any, Sequence
+from typing import Any, Callable, Sequence
 
 import numpy as np
 
@@ -30,7 +30,8 @@ ROW_KEYS = (("displacement", "t", 3), ("kg_max", "m", 4), ("governing", "", 0), 
 def kg_limits_analysis(hull: Any, displacements: Sequence[float], cset: CriteriaSet, *, density: float,
                        spec: Any = None, openings: Sequence[Any] = (), lcg: float | None = None,
                        kg_range: tuple[float, float] | None = None, steps: int = 40,
-                       heels: Sequence[float] | None = None) -> tuple[list[dict[str, Any]], Document]:
+                       heels: Sequence[float] | None = None,
+                       progress: Callable[[], Any] | None = None) -> tuple[list[dict[str, Any]], Document]:
     """KG limits of ``hull`` [t, m] for ``cset`` over ``displacements`` [t], and their report.
 
     G lies on the centreline at ``lcg`` [m] (default: the LCB of level flotation at each
@@ -38,7 +39,7 @@ def kg_limits_analysis(hull: Any, displacements: Sequence[float], cset: Criteria
     ``steps`` grid steps over it bracket each limit before Brent's method refines it; ``heels``
     [deg] (default 0..90 in 1°) are the angles of the curves. ``spec`` is the case file (for
     weather and arms), None for a bare mesh. Sides: starboard for a symmetric hull (the weather
-    roll mirrors the curve), both otherwise.
+    roll mirrors the curve), both otherwise. ``progress`` is called once per displacement done.
     """
     ds = np.asarray(displacements, dtype=float)
     if ds.ndim != 1 or len(ds) == 0 or not np.all(np.isfinite(ds)) or np.any(ds <= 0):
@@ -49,7 +50,8 @@ def kg_limits_analysis(hull: Any, displacements: Sequence[float], cset: Criteria
     wind, arms = wind_and_arms(spec, hull, cset, mirror=sym, where=os.path.basename(hull.name))
     sides = (1,) if sym else (1, -1)
     res = kg_limits_for_hull(hull, ds, cset, kg_range=kg_range, lcg=lcg, heels=heels, density=density,
-                             openings=tuple(openings), sides=sides, steps=steps, wind=wind, heeling_arms=arms)
+                             openings=tuple(openings), sides=sides, steps=steps, wind=wind, heeling_arms=arms,
+                             progress=progress)
     # search_end: every criterion still passed at the top of the KG range, so kg_max is only a lower bound
     rows = [{"displacement": r.displacement, "kg_max": r.kg_max, "governing": r.governing,
              "gm_required": r.gm_required, "search_end": r.kg_max is not None and r.governing is None,

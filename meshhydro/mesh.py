@@ -458,6 +458,28 @@ def _scale_findings(src: str, size: float, units: str) -> tuple[list[str], list[
     return [], []
 
 
+#: a hull's height over its breadth above which the axes are queried (a Y-up export read as Z-up stands
+#: the hull on its side: height/breadth becomes breadth/depth, typically 2-4; deep-keeled monohulls reach
+#: about 1.2-1.4; common practice)
+TALL_RATIO = 1.5
+#: an extent across or up over the length above which the forward axis is queried (common practice)
+SHORT_RATIO = 1.2
+
+
+def _axis_findings(extent: np.ndarray) -> list[str]:
+    """Hints (warnings) when the hull's proportions suggest its file used other axes than x forward, z up."""
+    ex, ey, ez = (float(e) for e in extent)
+    notes = []
+    if max(ey, ez) > SHORT_RATIO * ex:
+        axis, e = ("y", ey) if ey >= ez else ("z", ez)
+        notes.append(f"the longest extent is along {axis} ({e:.4g} m; x only {ex:.4g} m): if x is not forward "
+                     f"in the file, read it with --forward (case files: [hull] forward)")
+    if ez > TALL_RATIO * ey:
+        notes.append(f"the hull is {ez / ey:.2g} times as tall as it is wide (z {ez:.4g} m, y {ey:.4g} m): if the "
+                     f"file is Y-up, as many CAD and scan exports are, read it with --up +y (case files: [hull] up)")
+    return notes
+
+
 def inspect(md: MeshData, *, progress: Progress | None = None) -> HealthReport:
     """Build the health report of a mesh already in the hull frame.
 
@@ -483,6 +505,7 @@ def inspect(md: MeshData, *, progress: Progress | None = None) -> HealthReport:
                  _scale_findings(src, size, md.units)):
         problems += p
         warnings += w
+    warnings += _axis_findings(hi - lo)
     return HealthReport(
         source=src, units=md.units, n_vertices=int(len(v)), n_faces=int(len(f)), welded_vertices=md.welded,
         bounds=(lo.tolist(), hi.tolist()), extent=(hi - lo).tolist(),

@@ -28,7 +28,7 @@ judged "$MH" criteria "$CASE" --quiet --format json --out "$OUT/criteria.json"
 echo; echo "== 5b. with the weather criterion (IS Code 2.3; plot $OUT/gz_weather.png) and the KG limit curve"
 judged "$MH" criteria "$CASE" --set imo2008-weather --quiet --plot "$OUT/gz_weather.png" --format json \
     --out "$OUT/criteria_weather.json"
-"$MH" kg-limits "$CASE" --displacements 30:50:5 --set imo2008-weather --plot "$OUT/kg_limits.png"
+"$MH" kg-limits "$CASE" --displacements 30:50:5 --set imo2008-weather --plot "$OUT/kg_limits.png" --quiet
 echo; echo "== 6. heel sweep: frames, section view, contact sheet, GIF in $OUT/sweep/"
 "$MH" sweep "$CASE" --heels 0:60:5 --out "$OUT/sweep" --sheet --gif --quiet
 echo; echo "== 7. design-review report: one self-contained HTML file $OUT/review.html (exit 1: a condition fails)"

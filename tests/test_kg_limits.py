@@ -27,7 +27,10 @@ def test_gm_criterion_gives_km_minus_limit_on_a_box():
     L, B, D = 20.0, 6.0, 6.0
     hull = _hull(*box(L, B, D))
     drafts = np.array([1.0, 1.5, 2.0, B / math.sqrt(6), 3.0, 3.5])
-    rows = kg_limits_for_hull(hull, RHO * L * B * drafts, GM_ONLY, heels=range(0, 31, 5), xtol=1e-9)
+    ticks = []
+    rows = kg_limits_for_hull(hull, RHO * L * B * drafts, GM_ONLY, heels=range(0, 31, 5), xtol=1e-9,
+                              progress=lambda: ticks.append(1))
+    assert len(ticks) == len(drafts)  # one progress step per displacement
     km = drafts / 2 + B * B / (12 * drafts)
     kg = np.array([r.kg_max for r in rows])
     assert kg == pytest.approx(km - 0.15, abs=1e-8)

@@ -111,3 +111,20 @@ def test_bad_files(tmp_path):
         load_hull(str(nan))
     with pytest.raises(InputError, match="unit"):
         load_hull(tm(*box(1, 1, 1)), units="furlong")
+
+
+def test_proportions_that_suggest_other_axes_give_a_hint(tmp_path):
+    # a Y-up export read as Z-up stands the hull on its side: it passes as a mesh, so check says what
+    # the proportions suggest (a hint, not an error; common practice: hulls are longer than wide, wider
+    # than deep)
+    v, f = box(12.0, 4.8, 1.6)
+    p = tmp_path / "yup.stl"
+    trimesh.Trimesh(v[:, [0, 2, 1]], f[:, ::-1], process=False).export(p)  # file y up, file z across
+    _, rep = check_mesh(str(p))
+    assert rep.usable and any("--up +y" in w and "3 times as tall" in w for w in rep.warnings)
+    _, rep = check_mesh(str(p), up="+y")
+    assert not any("--up" in w or "--forward" in w for w in rep.warnings)
+    q = tmp_path / "yfwd.stl"
+    trimesh.Trimesh(v[:, [1, 0, 2]], f[:, ::-1], process=False).export(q)  # file y forward
+    _, rep = check_mesh(str(q))
+    assert any("longest extent is along y" in w and "--forward" in w for w in rep.warnings)

@@ -11,7 +11,7 @@ from .. import limits_analysis
 from ..errors import InputError
 from ..loading import read_case
 from .common import (check_figure, density, is_case, load_mesh, mesh_args, out_args, output, parse_range,
-                     refuse_mesh_options, water_args)
+                     progress, refuse_mesh_options, water_args)
 from .stability import criteria_set
 
 
@@ -35,8 +35,9 @@ def cmd_kg_limits(args: argparse.Namespace) -> int:
             rng = None
         if rng is None or not rng[0] < rng[1]:
             raise InputError(f"--kg-range takes LOW:HIGH [m] with LOW < HIGH, got {args.kg_range!r}")
-    _, doc = limits_analysis.kg_limits_analysis(hull, ds, cset, density=rho, spec=spec, openings=openings,
-                                                lcg=args.lcg, kg_range=rng, steps=args.steps)
+    with progress(args, len(ds), "KG limits") as bar:
+        _, doc = limits_analysis.kg_limits_analysis(hull, ds, cset, density=rho, spec=spec, openings=openings,
+                                                    lcg=args.lcg, kg_range=rng, steps=args.steps, progress=bar)
     output(args, doc, args.plot)
     return 0
 
@@ -53,6 +54,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                                                          "(default 40)")
     k.add_argument("--lcg", type=float, help="fixed LCG [m] instead of the LCB of level flotation")
     k.add_argument("--plot", help="draw the KG limit curve to this file (.png, .svg or .pdf)")
+    k.add_argument("--quiet", action="store_true", help="no progress bar")
     water_args(k)
     mesh_args(k)
     out_args(k)
