@@ -200,6 +200,17 @@ def gz_curve(data: Mapping[str, Any], *, path: str | None = None) -> str:
     return finish(gz_figure(data), path)
 
 
+def criteria_gz(data: Mapping[str, Any], *, path: str | None = None) -> str:
+    """GZ in the signed heel frame with the weather criterion's levers and areas a, b (one panel per wind
+    direction) and any heeling arms; SVG text. ``data`` as :func:`meshhydro.plots_limits.criteria_gz_figure`
+    takes it, plus an optional ``title``."""
+    from .plots_limits import criteria_gz_figure
+
+    fig = criteria_gz_figure(data, title=data.get("title", ""))
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    return finish(fig, path)
+
+
 # --------------------------------------------------------------------------- output
 def finish(fig: Any, path: str | None) -> str:
     """Add the caution, write ``path`` (by suffix) when given, and return the figure as SVG text."""
@@ -268,6 +279,7 @@ def kg_limits_plot(data: Mapping[str, Any], *, path: str | None = None) -> str:
 #: Figure.view name -> drawing function (data, *, path) -> SVG text.
 VIEWS: dict[str, Callable[..., str]] = {
     "gz_curve": gz_curve,
+    "criteria_gz": criteria_gz,
     "hydrostatic_curves": hydrostatic_curves,
     "section_plot": section_plot,
     "compare_overlay": compare_overlay,

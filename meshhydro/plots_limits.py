@@ -47,7 +47,16 @@ def _arm(ax: Any, item: Mapping[str, Any], top: float) -> None:
 
 def criteria_gz(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
     """GZ curve (signed heel, positive starboard down) with heeling arms and their residual areas shaded,
-    and the weather criterion's levers lw1, lw2 and areas a, b: one panel per wind direction.
+    and the weather criterion's levers lw1, lw2 and areas a, b: one panel per wind direction, written to
+    ``path`` (see :func:`criteria_gz_figure`)."""
+    fig = criteria_gz_figure(data, title=title)
+    fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
+    fig.tight_layout(rect=(0, 0.02, 1, 1))
+    save_figure(path, fig, dpi=130)
+
+
+def criteria_gz_figure(data: Mapping[str, Any], *, title: str = "") -> Any:
+    """The matplotlib figure of :func:`criteria_gz`, without the caution line.
 
     ``data``: curve (RightingCurve), arms (list of {sign, name, arm, analysis}), weather ({side name:
     WeatherResult}). A curve computed on one side is drawn mirrored (dashed) where a weather roll
@@ -78,9 +87,7 @@ def criteria_gz(data: Mapping[str, Any], path: str, *, title: str = "") -> None:
         ax.grid(True, alpha=0.3)
         ax.legend(loc="best", fontsize=7)
     fig.suptitle(title or "GZ curve with heeling arms", fontsize=11)
-    fig.text(0.01, 0.005, CAUTION, fontsize=7, color="0.35")
-    fig.tight_layout(rect=(0, 0.02, 1, 1))
-    save_figure(path, fig, dpi=130)
+    return fig
 
 
 def kg_limits(data: Mapping[str, Any], path: str, *, title: str = "") -> None:

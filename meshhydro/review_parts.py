@@ -195,8 +195,12 @@ def weather_section(rv: Review, cr: ConditionRun) -> Section | None:
             for key, label, unit in WEATHER_VALUES]
     cols = [Column("quantity", "quantity"), Column("unit", "unit")] + [
         Column(s, f"heeling to {s}", "", 4) for s in sides]
+    drawn = [f for s in cr.criteria_doc.sections for f in s.figures if f.view == "criteria_gz"]
+    figures = [Figure("weather-gz", f"{cr.inp.condition.name}: GZ with the wind levers lw1, lw2 and areas a, b",
+                      "criteria_gz", {**drawn[0].data, "title": "Weather criterion: GZ with lw1, lw2 and areas "
+                                      "a (red), b (green), heel positive starboard down"})] if drawn else []
     return Section("weather", "Weather criterion (severe wind and rolling, IS Code 2.3)",
-                   tables=[Table("weather", "", cols, rows)],
+                   tables=[Table("weather", "", cols, rows)], figures=figures,
                    notes=["lw1 from the windage area A and its lever Z at the wind pressure P; lw2 = 1.5 lw1 "
                           "(gust); θ1 the roll to windward from θ0; area a lies between lw2 and the curve from "
                           "θ0 − θ1 to the gust-lever intercept, area b between the curve and lw2 from that "

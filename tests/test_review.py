@@ -274,6 +274,14 @@ def test_weather_section(weather_review):
         assert lw2 == pytest.approx(1.5 * lw1, rel=1e-12) and lw1 > 0
         labels = [r["quantity"] for r in w.rows]
         assert "area a" in labels and "area b" in labels and "windage area A" in labels and "lever Z" in labels
+        # the picture of the same levers and areas, drawn by the report's view as SVG
+        fig = c.sections[-1].figures[0]
+        assert fig.view == "criteria_gz" and side in fig.data["weather"]
+        from meshhydro import figures
+
+        svg = figures.draw(fig)
+        assert svg.lstrip().startswith("<?xml") or "<svg" in svg[:500]
+        assert f"lw1 {lw1:.4f} m" in svg and "area a" in svg
 
 
 def test_kg_limit_rows_match_the_command(weather_review, capsys):
