@@ -20,12 +20,7 @@ from .frames import axis_matrix, unit_scale
 from .mesh_stl import Progress, binary_stl_count, read_binary_stl, weld
 from .mesh_topology import (EdgeTable, EdgeUse, bodies_by_edges, body_sums, capped_volumes_below,
                             degenerate_faces, duplicate_faces, edge_table, edge_use, rim_chains)
-
-#: A hull larger than this in its longest extent [m] is taken as a unit mistake.
-MAX_PLAUSIBLE_LENGTH = 1000.0
-#: A hull smaller than this in its longest extent [m] is taken as a unit mistake (a 5 cm model is the least
-#: we accept; common practice: towing-tank and radio-controlled models are larger).
-MIN_PLAUSIBLE_LENGTH = 0.05
+from .mesh_proportions import axis_findings, scale_findings
 
 
 @dataclass(frozen=True)
@@ -448,38 +443,6 @@ def _face_findings(src: str, md: MeshData, topo: _Topology, rims: list[Rim]) -> 
     return problems, warnings
 
 
-def _scale_findings(src: str, size: float, units: str) -> tuple[list[str], list[str]]:
-    if size > MAX_PLAUSIBLE_LENGTH:
-        return [f"{src}: the hull is {size:.6g} m long in unit {units!r}; that looks like a unit "
-                f"mistake (try --units mm)"], []
-    if size < MIN_PLAUSIBLE_LENGTH:
-        return [f"{src}: the hull is only {size:.4g} m long in unit {units!r}; that looks like a unit "
-                f"mistake (try --units m)"], []
-    return [], []
-
-
-#: a hull's height over its breadth above which the axes are queried (a Y-up export read as Z-up stands
-#: the hull on its side: height/breadth becomes breadth/depth, typically 2-4; deep-keeled monohulls reach
-#: about 1.2-1.4; common practice)
-TALL_RATIO = 1.5
-#: an extent across or up over the length above which the forward axis is queried (common practice)
-SHORT_RATIO = 1.2
-
-
-def _axis_findings(extent: np.ndarray) -> list[str]:
-    """Hints (warnings) when the hull's proportions suggest its file used other axes than x forward, z up."""
-    ex, ey, ez = (float(e) for e in extent)
-    notes = []
-    if max(ey, ez) > SHORT_RATIO * ex:
-        axis, e = ("y", ey) if ey >= ez else ("z", ez)
-        notes.append(f"the longest extent is along {axis} ({e:.4g} m; x only {ex:.4g} m): if x is not forward "
-                     f"in the file, read it with --forward (case files: [hull] forward)")
-    if ez > TALL_RATIO * ey:
-        notes.append(f"the hull is {ez / ey:.2g} times as tall as it is wide (z {ez:.4g} m, y {ey:.4g} m): if the "
-                     f"file is Y-up, as many CAD and scan exports are, read it with --up +y (case files: [hull] up)")
-    return notes
-
-
 def inspect(md: MeshData, *, progress: Progress | None = None) -> HealthReport:
     """Build the health report of a mesh already in the hull frame.
 
@@ -502,10 +465,10 @@ def inspect(md: MeshData, *, progress: Progress | None = None) -> HealthReport:
     step("check", 3, 3)
     problems, warnings, n_unbal = _topology_findings(src, v, topo)
     for p, w in (_body_findings(src, bodies, overlaps, checked), _face_findings(src, md, topo, rims),
-                 _scale_findings(src, size, md.units)):
+                 scale_findings(src, size, md.units)):
         problems += p
         warnings += w
-    warnings += _axis_findings(hi - lo)
+    warnings += axis_findings(hi - lo)
     return HealthReport(
         source=src, units=md.units, n_vertices=int(len(v)), n_faces=int(len(f)), welded_vertices=md.welded,
         bounds=(lo.tolist(), hi.tolist()), extent=(hi - lo).tolist(),

@@ -29,7 +29,7 @@ from . import kernel
 from . import tolerances as tol
 from .damage import Compartment, flooded_cut
 from .errors import CannotFloatError, InputError, NotConvergedError, OpenRimError
-from .frames import longitudinal_direction, transverse_direction, up_derivatives, up_vector
+from .frames import transverse_direction, up_derivatives, up_vector
 from .hull import Hull
 from .hydrostatics import check_density
 from .load import Load
