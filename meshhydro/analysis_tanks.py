@@ -184,6 +184,19 @@ def curves_figure(key: str, title: str, cond: Condition, curve: RightingCurve,
 # ---------------------------------------------------------------------------- calibration tables
 
 
+def _with_limit_below_top(tank: Any, rows: list[dict[str, Any]], heel: float, trim: float) -> list[dict[str, Any]]:
+    """The rows with one more just under the top sounding (a millionth of the sounding range below), for the
+    figure: a full tank has no free surface, but just below a flat top the surface is the whole top, so
+    the free-surface moment drops to zero at the top itself rather than along the last step."""
+    if len(rows) < 2 or rows[-1]["fs_area"] != 0.0:
+        return rows
+    top, prev = rows[-1]["sounding"], rows[-2]["sounding"]
+    below = top - 1e-6 * max(top - rows[0]["sounding"], 1e-9)
+    if not prev < below < top:
+        return rows
+    return rows[:-1] + calibration_table(tank, [below], heel=heel, trim=trim) + rows[-1:]
+
+
 def tank_tables_analysis(tanks: Sequence[Any], step: float, *, heel: float = 0.0, trim: float = 0.0,
                          label: str = "") -> tuple[dict[str, list[dict[str, Any]]], Document]:
     """Sounding tables of ``tanks`` every ``step`` [m] at a heel and trim [deg], and their report.
@@ -205,7 +218,8 @@ def tank_tables_analysis(tanks: Sequence[Any], step: float, *, heel: float = 0.0
     cols = [Column("tank", "tank")] + [Column(k, k, CALIBRATION_UNITS[k], digits.get(k, 4)) for k in keys]
     sec = Section("calibration", "", tables=[Table("calibration", "", cols, rows)], notes=notes)
     sec.figures.append(Figure("tanks", f"Tank calibration: {label} (heel {heel:g}°, trim {trim:g}°)",
-                              "tank_calibration", tables))
+                              "tank_calibration", {t.name: _with_limit_below_top(t, tables[t.name], heel, trim)
+                                                   for t in tanks}))
     doc = Document(title=f"tank calibration tables: {label}  (heel {heel:g}°, trim {trim:g}°)", vessel=label,
                    header=["sounding: vertical depth of the level above the tank's sounding point; "
                            "i_t, i_l about the free surface's own centroid; fsm = ρ i"],

@@ -60,8 +60,10 @@ def _gz_limits(sides: list[tuple[np.ndarray, np.ndarray]], extra: list[float]) -
     return lo - pad, hi + 2.0 * pad
 
 
-def _shade_areas(ax: Any, x: np.ndarray, y: np.ndarray, areas: Sequence[Any], colour: str, side: str) -> None:
-    """Shade the areas under the curve: disjoint bands between all break angles, alternating tone."""
+def _shade_areas(ax: Any, x: np.ndarray, y: np.ndarray, areas: Sequence[Any], colour: str, side: str, *,
+                 hatched: bool = False) -> None:
+    """Shade the areas under the curve: disjoint bands between all break angles, alternating tone; hatched
+    without fill (``hatched``) for a second side, so that two sides' areas stay apart where they overlap."""
     ranges = []
     for a in areas:
         if len(a) not in (2, 3):
@@ -72,12 +74,20 @@ def _shade_areas(ax: Any, x: np.ndarray, y: np.ndarray, areas: Sequence[Any], co
         if not any(r[0] <= a and b <= r[1] for r in ranges):
             continue
         fine = np.linspace(a, b, 60)
-        ax.fill_between(fine, 0, np.interp(fine, x, y), color=colour, alpha=0.22 if j % 2 == 0 else 0.12, lw=0)
+        if hatched:
+            ax.fill_between(fine, 0, np.interp(fine, x, y), facecolor="none", edgecolor=colour, lw=0,
+                            hatch="///" if j % 2 == 0 else "\\\\", alpha=0.55)
+        else:
+            ax.fill_between(fine, 0, np.interp(fine, x, y), color=colour, alpha=0.22 if j % 2 == 0 else 0.12, lw=0)
     for b in breaks:
         ax.plot([b, b], [0, float(np.interp(b, x, y))], color=colour, lw=0.6, alpha=0.7)
     for a, b, v in ranges:
         text = f"area {a:g}–{b:g}°" + ("" if v is None else f" = {v:.4f} m·rad") + f" ({side})"
-        ax.plot([], [], color=colour, alpha=0.3, lw=6, label=text)
+        if hatched:
+            ax.fill_between([], [], [], facecolor="none", edgecolor=colour, hatch="///", lw=0, alpha=0.55,
+                            label=text)
+        else:
+            ax.plot([], [], color=colour, alpha=0.3, lw=6, label=text)
 
 
 def _limit_lines(ax: Any, limits: Sequence[Mapping[str, Any]], xmax: float) -> list[float]:
@@ -156,7 +166,7 @@ def gz_figure(data: Mapping[str, Any]) -> Any:
         ax.plot(x, y, color=colour, ls=ls, lw=1.9, label=f"GZ, heeling to {s['name']}")
         _mark_max(ax, s, colour)
         if s.get("areas"):
-            _shade_areas(ax, x, y, s["areas"], colour, str(s["name"]))
+            _shade_areas(ax, x, y, s["areas"], colour, str(s["name"]), hatched=i > 0)
         for key, name, mk in (("downflooding", "downflooding", "v"), ("vanishing", "vanishing", "o"),
                               ("deck_edge", "deck edge", "D")):
             if s.get(key) is not None:

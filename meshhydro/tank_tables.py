@@ -14,7 +14,7 @@ import numpy as np
 from .errors import InputError
 from .frames import up_vector
 from .fluid import FluidLoad
-from .tanks import Tank, sounding_cut
+from .tanks import Tank, at_top, sounding_cut
 
 #: Units of the calibration table's columns.
 CALIBRATION_UNITS: dict[str, str] = {
@@ -43,8 +43,8 @@ def calibration_table(tank: Tank, soundings: Sequence[float], *, heel: float = 0
     rows = []
     for h in soundings:
         c = sounding_cut(tank, h, up)
-        vol = min(c.volume, tank.capacity)
-        full = vol >= tank.capacity
+        full = c.volume >= tank.capacity or at_top(tank, h, up)  # a level at the top fills the tank
+        vol = tank.capacity if full else c.volume
         cen = tank.centroid_full if full else c.centroid
         area, i_t, i_l = (0.0, 0.0, 0.0) if full else (c.waterplane_area, c.inertia_t, c.inertia_l)
         rows.append({
@@ -68,6 +68,8 @@ def sounding_steps(tank: Tank, step: float, *, heel: float = 0.0, trim: float = 
     out = [lo + k * step for k in range(n + 1)]
     if top - out[-1] > 1e-9 * max(top, 1.0):
         out.append(top)
+    else:  # the last step lands on the top, perhaps a rounding above it (29 x 0.05 > 1.45): take the top itself
+        out[-1] = top
     return out
 
 

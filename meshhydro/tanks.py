@@ -463,6 +463,22 @@ def sounding_cut(tank: Tank, sounding: float, up: Any) -> kernel.Cut:
     return kernel.cut(tank.prepared, tank.sounding_point + h * n, n)
 
 
+#: relative allowance [-] within which a sounding is taken as the tank's top (a few units of rounding)
+TOP_SOUNDING_RTOL = 1e-12
+
+
+def at_top(tank: Tank, sounding: float, up: Any) -> bool:
+    """True when a sounding [m] with vertical ``up`` (3,) reaches the tank's top: the tank is full. Decided
+    on the geometry, not on the cut volume: sounding point + depth may land an ulp under the top (0.05 +
+    0.75 against 0.8) and would leave a free surface of the whole top on a full tank."""
+    n = unit_vertical(up)
+    top = float((tank.vertices @ n).max() - n @ tank.sounding_point)
+    return float(sounding) >= top - TOP_SOUNDING_RTOL * max(abs(top), 1.0)
+
+
 def sounding_volume(tank: Tank, sounding: float, up: Any) -> float:
-    """Fluid volume [m³] at a sounding [m] with vertical ``up`` (3,)."""
+    """Fluid volume [m³] at a sounding [m] with vertical ``up`` (3,); the capacity at the top."""
+    if at_top(tank, sounding, up):
+        sounding_cut(tank, sounding, up)  # still refuses a sounding above the top
+        return tank.capacity
     return min(sounding_cut(tank, sounding, up).volume, tank.capacity)

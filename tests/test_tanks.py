@@ -177,6 +177,17 @@ def test_calibration_table_box():
         assert r["i_t"] == pytest.approx((L_T / ct) * B_T**3 / 12, rel=1e-12)
     steps = sounding_steps(t, 0.5)
     assert steps[0] == 0.0 and steps[-1] == pytest.approx(D_T) and len(steps) == 5
+    # a step whose multiple lands on the top by a rounding above it (29 x 0.05 = 1.4500000000000002 > 1.45)
+    deep = tank_from_box("deep", [[0.0, 0.0, 0.05], [1.0, 1.0, 1.5]], density=1.0)  # 1.45 m deep
+    steps = sounding_steps(deep, 0.05)
+    assert len(steps) == 30 and steps[-1] == max(s for s in steps) <= 1.45 + 1e-15
+    assert calibration_table(deep, steps)[-1]["volume"] == pytest.approx(deep.capacity, rel=1e-12)
+    # a level at the top fills the tank (no free surface) even where sounding point + depth lands an ulp
+    # under the top (0.05 + 0.75 against 0.8): physical fact, a full tank's fluid cannot shift
+    fw = tank_from_box("fw", [[9.0, -1.0, 0.05], [10.4, 1.0, 0.8]], density=1.0)
+    last = calibration_table(fw, sounding_steps(fw, 0.2))[-1]
+    assert last["volume"] == fw.capacity and last["fs_area"] == 0.0 and last["fsm_t"] == 0.0
+    assert fw.volume_for(sounding=0.75) == fw.capacity  # a fill by sounding at the top is a full tank
     top = calibration_table(t, [D_T])[0]
     assert top["volume"] == pytest.approx(t.capacity) and top["fs_area"] == 0.0
     assert t.volume_for(sounding=0.8) == pytest.approx(L_T * B_T * 0.8, rel=1e-12)
