@@ -285,6 +285,9 @@ class Scene:
             mtext = ""
         else:
             mtext = f"   M off view (BM {t.bm[k]:.2f} m)"
+        under = t.immersed(k) if hasattr(t, "immersed") else []
+        if under:
+            mtext += f"\nopening under water: {', '.join(under)} (past the downflooding angle)"
         if getattr(t, "note", ""):
             mtext += f"\n{t.note}"
         self._letters(shown, self.rad)

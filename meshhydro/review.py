@@ -283,7 +283,7 @@ def sweep_section(rv: Review) -> Section | None:
     bar = rv.bars(len(o.sweep_heels), f"sweep, {c.name}")
     try:
         tr = heel_trace(rv.hull, c.displacement, c.cog, o.sweep_heels, density=rv.case.density, fsm=c.fsm,
-                        label=c.name, progress=bar)
+                        label=c.name, progress=bar, openings=rv.case.openings)
     finally:
         bar.close()
     sec = Section("sweep", f"Heel sweep: {c.name}")

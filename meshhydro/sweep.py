@@ -79,10 +79,15 @@ class Trace:
             rows.append({"heel": float(self.heel[k]), "draft": t if math.isfinite(t) else None,
                          "keel_depth": float(self.keel_depth[k]), "trim": float(self.trim[k]),
                          "gz": float(self.gz[k]), "B": self.cob[k].tolist(), "M": self.metacentre[k].tolist(),
-                         "G": self.cog_at(k).tolist(), "up": self.up[k].tolist(), "bm": float(self.bm[k])})
+                         "G": self.cog_at(k).tolist(), "up": self.up[k].tolist(), "bm": float(self.bm[k]),
+                         "openings_under_water": self.immersed(k)})
         return {"label": self.label, "displacement": self.displacement, "density": self.density,
                 "frame": "hull frame: x forward, y to port, z up [m]; heel positive starboard down",
                 "submerged": bool(self.curve.submerged), "note": self.note, "angles": rows}
+
+    def immersed(self, k: int) -> list[str]:
+        """Names of the openings under water at the k-th angle (their height above the water below zero)."""
+        return [name for name, fb in self.curve.openings.items() if fb[k] < 0.0]
 
     @property
     def note(self) -> str:
@@ -92,12 +97,14 @@ class Trace:
 
 def heel_trace(hull: Hull, displacement: float, cog: Sequence[float], heels: Sequence[float], *,
                density: float = SEA_WATER, fsm: float = 0.0, label: str = "", progress: Any = None,
-               submerged_depth: float = 0.0, load: Any = None, compartments: Sequence[Any] = ()) -> Trace:
+               submerged_depth: float = 0.0, load: Any = None, compartments: Sequence[Any] = (),
+               openings: Sequence[Any] = ()) -> Trace:
     """Free-trim positions over ``heels`` [deg] with B, M and G in the hull frame.
 
     ``submerged_depth`` [m]: see :func:`meshhydro.stability.righting_curve`. ``load`` (a
     :class:`meshhydro.load.Load`, e.g. a condition's ``load()`` with tank fluid that shifts) replaces
-    displacement, cog and fsm when given; ``compartments`` are flooded (lost buoyancy).
+    displacement, cog and fsm when given; ``compartments`` are flooded (lost buoyancy); ``openings``
+    (objects with ``name`` and ``at``) are followed, so that a frame says which are under water.
     """
     if load is not None or compartments:
         from .load import FixedLoad
@@ -105,9 +112,11 @@ def heel_trace(hull: Hull, displacement: float, cog: Sequence[float], heels: Seq
 
         ld = load if load is not None else FixedLoad(displacement, vec3(cog, "cog"), fsm)
         return Trace(curve_for_load(hull, ld, heels=heels, density=density, progress=progress,
-                                    compartments=compartments, submerged_depth=submerged_depth), label)
+                                    compartments=compartments, submerged_depth=submerged_depth,
+                                    openings=openings), label)
     return Trace(righting_curve(hull, displacement=displacement, cog=vec3(cog, "cog"), heels=heels, density=density,
-                                fsm=fsm, progress=progress, submerged_depth=submerged_depth), label)
+                                fsm=fsm, progress=progress, submerged_depth=submerged_depth, openings=openings),
+                 label)
 
 
 def _check_target(out: str) -> None:

@@ -700,8 +700,6 @@ def test_cli_condition_with_a_mesh(capsys):
 def test_cli_opening_where_unused(capsys, tmp_path):
     assert "--opening: this command does not use openings" in refused(capsys, "float", BARGE, *QUICK, "--opening",
                                                                       "door=2,0,2")
-    assert "--opening: this command does not use openings" in refused(
-        capsys, "sweep", BARGE, *QUICK, "--opening", "door=2,0,2", "--out", str(tmp_path / "s"))
 
 
 def test_cli_sweep_3d_options_with_section_view(capsys, tmp_path):

@@ -195,3 +195,18 @@ def test_contact_sheet_and_gif_from_frames():
     assert gif.n_frames == 5 + 3  # forth and back without repeating the ends
     with pytest.raises(ValueError, match="at least one frame"):
         sheet_array([])
+
+
+def test_frames_name_the_openings_under_water(box_hull):
+    # wall-sided box (20 x 6 x 4 m) at T = 1.5 m, G on the centreline: the waterline turns about the
+    # centreline, so a point on the starboard side at height z goes under at tan φ = (z - T) / (B / 2)
+    # (geometry of the wall-sided box; heel positive starboard down)
+    from meshhydro.loading import Opening
+
+    door = Opening("door", (10.0, -3.0, 2.2))
+    heels = [0.0, 10.0, 20.0, 24.0]
+    tr = heel_trace(box_hull, RHO * 20 * 6 * 1.5, (10.0, 0.0, 2.0), heels, openings=[door])
+    limit = math.degrees(math.atan((2.2 - 1.5) / 3.0))  # 13.13°
+    assert [bool(tr.immersed(k)) for k in range(len(heels))] == [h > limit for h in heels]
+    assert tr.to_dict()["angles"][2]["openings_under_water"] == ["door"]
+    assert tr.curve.downflooding_angle(1)[0] == pytest.approx(limit, abs=1e-6)

@@ -18,12 +18,12 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     heels = check_angles(parse_range(args.heels, "--heels"), -180.0, 180.0, what="--heels")
     if args.view == "section":
         refuse(args, ["camera", "gif", "sheet", "smooth_edges"], "these shape the 3D frames; --view section draws none")
-    src = load_source(args, openings=False)
+    src = load_source(args)
     c = src.condition
     bar = progress(args, len(heels), "solving")
     tr = heel_trace(src.hull, c.displacement, c.cog, heels, density=src.density, fsm=c.fsm, label=src.label,
                     progress=bar, submerged_depth=src.depth_option(), load=c.load() if c.tanks else None,
-                    compartments=c.flooded)
+                    compartments=c.flooded, openings=src.openings)
     bar.close()
     n_frames = len(tr.heel) if args.view in ("3d", "both") else 0
     bar = progress(args, max(n_frames, 1), "rendering")
@@ -39,6 +39,10 @@ def cmd_sweep(args: argparse.Namespace) -> int:
               f"BM {tr.bm[k]:.4f} m")
     if tr.note:
         print(f"note: {tr.note}")
+    for s in sorted({1 if h >= 0 else -1 for h in tr.heel}, reverse=True):
+        flood, name = tr.curve.downflooding_angle(s)
+        if flood is not None and name in tr.curve.openings and any(tr.immersed(k) for k in range(len(tr.heel))):
+            print(f"  {name} goes under water at {s * flood:.2f}° (downflooding); later frames say so")
     for s, a in sorted(tr.curve.swamping.items()):
         print(f"  ends at the swamping angle {s * a:.4f}°: the water reaches the open rim there")
     print(f"wrote {args.out}: {frames} frames, " + ", ".join(others))
