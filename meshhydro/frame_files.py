@@ -9,6 +9,7 @@ back from files.
 from __future__ import annotations
 
 import io
+import math
 from concurrent.futures import Future, ThreadPoolExecutor
 from dataclasses import dataclass
 from typing import Any, Sequence
@@ -19,6 +20,9 @@ import numpy as np
 FRAME_PNG_LEVEL = 1
 #: zlib level of the contact sheet (a large picture: a middle level keeps the file small and quick)
 SHEET_PNG_LEVEL = 3
+#: most pixels of the frames on a contact sheet: beyond it each frame is reduced by a whole factor (box
+#: filter), so a long sweep of large frames neither builds a sheet nobody can open nor holds every frame
+SHEET_MAX_PIXELS = 40_000_000
 
 
 @dataclass(frozen=True)
@@ -80,29 +84,40 @@ class FrameEncoder:
 
     ``add(rgb)`` queues a frame (angle order); ``finish()`` waits and returns the
     :class:`SweepPictures`; ``cancel()`` drops queued work (on an error). The sheet and the GIF are
-    made only when asked.
+    made only when asked; ``count`` (the frames to come) lets the sheet's frames be reduced so that
+    the sheet stays within :data:`SHEET_MAX_PIXELS`.
     """
 
-    def __init__(self, *, sheet: bool = True, gif: bool = True) -> None:
+    def __init__(self, *, sheet: bool = True, gif: bool = True, count: int | None = None) -> None:
         self.want_sheet, self.want_gif = sheet, gif
+        self.count = count
         self._pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="meshhydro-frames")
         self._jobs: list[Future] = []
-        self._arrays: list[np.ndarray] = []
 
     def add(self, rgb: np.ndarray) -> None:
-        if self.want_sheet:
-            self._arrays.append(rgb)
         self._jobs.append(self._pool.submit(self._encode, rgb))
 
-    def _encode(self, rgb: np.ndarray) -> tuple[bytes, Any]:
-        return png_bytes(rgb), (quantized(rgb) if self.want_gif else None)
+    def _encode(self, rgb: np.ndarray) -> tuple[bytes, Any, np.ndarray | None]:
+        return png_bytes(rgb), (quantized(rgb) if self.want_gif else None), \
+            (self._for_sheet(rgb) if self.want_sheet else None)
+
+    def _for_sheet(self, rgb: np.ndarray) -> np.ndarray:
+        """The frame as the sheet shows it: reduced by a whole factor when the sheet would be too large."""
+        h, w = rgb.shape[:2]
+        f = math.ceil(math.sqrt((self.count or 1) * h * w / SHEET_MAX_PIXELS))
+        if f <= 1:
+            return rgb
+        from PIL import Image
+
+        return np.asarray(Image.fromarray(rgb).reduce(f))
 
     def finish(self) -> SweepPictures:
         try:
             done = [j.result() for j in self._jobs]
-            gif_job = self._pool.submit(gif_bytes, [q for _, q in done]) if self.want_gif and done else None
-            sheet = png_bytes(sheet_array(self._arrays), level=SHEET_PNG_LEVEL) if self.want_sheet and done else None
-            return SweepPictures([p for p, _ in done], sheet, gif_job.result() if gif_job is not None else None)
+            gif_job = self._pool.submit(gif_bytes, [q for _, q, _ in done]) if self.want_gif and done else None
+            sheet = png_bytes(sheet_array([a for _, _, a in done]), level=SHEET_PNG_LEVEL) \
+                if self.want_sheet and done else None
+            return SweepPictures([p for p, _, _ in done], sheet, gif_job.result() if gif_job is not None else None)
         finally:
             self._pool.shutdown(wait=True)
 

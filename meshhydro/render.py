@@ -343,7 +343,7 @@ def render_pictures(hull: Hull, trace: Any, *, size: tuple[int, int] = (960, 720
     from .frame_files import FrameEncoder
 
     scene = Scene(hull, trace, size=size, camera=camera, smooth=smooth)
-    encoder = FrameEncoder(sheet=sheet, gif=gif)
+    encoder = FrameEncoder(sheet=sheet, gif=gif, count=len(trace.heel))
     try:
         for k in range(len(trace.heel)):
             encoder.add(scene.render(k))

@@ -210,3 +210,23 @@ def test_frames_name_the_openings_under_water(box_hull):
     assert [bool(tr.immersed(k)) for k in range(len(heels))] == [h > limit for h in heels]
     assert tr.to_dict()["angles"][2]["openings_under_water"] == ["door"]
     assert tr.curve.downflooding_angle(1)[0] == pytest.approx(limit, abs=1e-6)
+
+
+def test_a_long_sweep_of_large_frames_gets_a_sheet_of_reduced_frames(monkeypatch):
+    # the sheet stays within SHEET_MAX_PIXELS: frames reduced by a whole factor (Pillow's box reduce)
+    from meshhydro import frame_files
+    from meshhydro.frame_files import FrameEncoder
+
+    monkeypatch.setattr(frame_files, "SHEET_MAX_PIXELS", 10 * 40 * 30 // 4)  # room for 10 frames at half size
+    enc = FrameEncoder(sheet=True, gif=False, count=10)
+    frames = [np.full((30, 40, 3), 20 * k, dtype=np.uint8) for k in range(10)]
+    for a in frames:
+        enc.add(a)
+    out = enc.finish()
+    import io
+
+    sheet = np.asarray(Image.open(io.BytesIO(out.sheet)))
+    # 10 frames of 20 x 15 after halving: ceil(sqrt(10 * 15 / 20)) = 3 columns, 4 rows, 6 px gaps
+    assert sheet.shape == (4 * 15 + 5 * 6, 3 * 20 + 4 * 6, 3)
+    assert len(out.frames) == 10 and out.gif is None
+    assert np.array_equal(np.asarray(Image.open(io.BytesIO(out.frames[3]))), frames[3])  # frames kept whole
