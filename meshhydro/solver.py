@@ -124,7 +124,7 @@ def jacobian(st: State, v0: float, load: Load, K: np.ndarray, L: float) -> np.nd
     """Jacobian (3, 3) of :func:`residuals` with respect to (depth [m], heel [rad], trim [rad]).
 
     Exact for the cut: a change dn of the plane's normal (at fixed depth of K) changes the volume by
-    -A (F - K)·dn and its first moment by -P dn - (with P the waterplane's second moments about K,
+    -A (F - K)·dn and its first moment by -P dn (with P the waterplane's second moments about K,
     I + A F (F - K)ᵀ), a change of depth by A and A F. Written with plain floats: numpy's cost per call
     on 3-vectors would be most of the time of a small hull's curve.
     """
