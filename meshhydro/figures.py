@@ -210,7 +210,7 @@ def gz_curve(data: Mapping[str, Any], *, path: str | None = None) -> str:
     return finish(gz_figure(data), path)
 
 
-def criteria_gz(data: Mapping[str, Any], *, path: str | None = None) -> str:
+def weather_gz(data: Mapping[str, Any], *, path: str | None = None) -> str:
     """GZ in the signed heel frame with the weather criterion's levers and areas a, b (one panel per wind
     direction) and any heeling arms; SVG text. ``data`` as :func:`meshhydro.plots_limits.criteria_gz_figure`
     takes it, plus an optional ``title``."""
@@ -289,7 +289,7 @@ def kg_limits_plot(data: Mapping[str, Any], *, path: str | None = None) -> str:
 #: Figure.view name -> drawing function (data, *, path) -> SVG text.
 VIEWS: dict[str, Callable[..., str]] = {
     "gz_curve": gz_curve,
-    "criteria_gz": criteria_gz,
+    "weather_gz": weather_gz,
     "hydrostatic_curves": hydrostatic_curves,
     "section_plot": section_plot,
     "compare_overlay": compare_overlay,

@@ -197,7 +197,7 @@ def weather_section(rv: Review, cr: ConditionRun) -> Section | None:
         Column(s, f"heeling to {s}", "", 4) for s in sides]
     drawn = [f for s in cr.criteria_doc.sections for f in s.figures if f.view == "criteria_gz"]
     figures = [Figure("weather-gz", f"{cr.inp.condition.name}: GZ with the wind levers lw1, lw2 and areas a, b",
-                      "criteria_gz", {**drawn[0].data, "title": "Weather criterion: GZ with lw1, lw2 and areas "
+                      "weather_gz", {**drawn[0].data, "title": "Weather criterion: GZ with lw1, lw2 and areas "
                                       "a (red), b (green), heel positive starboard down"})] if drawn else []
     return Section("weather", "Weather criterion (severe wind and rolling, IS Code 2.3)",
                    tables=[Table("weather", "", cols, rows)], figures=figures,

@@ -25,7 +25,7 @@ echo; echo "== 4. righting levers with free trim, both directions (GZ plot $OUT/
 echo; echo "== 5. criteria (exit status 1 means not all met)"
 judged "$MH" criteria "$CASE" --quiet
 judged "$MH" criteria "$CASE" --quiet --format json --out "$OUT/criteria.json"
-echo; echo "== 5b. with the weather criterion (IS Code 2.3; plot $OUT/gz_weather.png) and the KG limit curve"
+echo; echo "== 5b. with the weather criterion (IS Code 2.3; plots $OUT/gz_weather.png, gz_weather-levers.png) and the KG limit curve"
 judged "$MH" criteria "$CASE" --set imo2008-weather --quiet --plot "$OUT/gz_weather.png" --format json \
     --out "$OUT/criteria_weather.json"
 "$MH" kg-limits "$CASE" --displacements 30:50:5 --set imo2008-weather --plot "$OUT/kg_limits.png" --quiet

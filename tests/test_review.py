@@ -276,7 +276,7 @@ def test_weather_section(weather_review):
         assert "area a" in labels and "area b" in labels and "windage area A" in labels and "lever Z" in labels
         # the picture of the same levers and areas, drawn by the report's view as SVG
         fig = c.sections[-1].figures[0]
-        assert fig.view == "criteria_gz" and side in fig.data["weather"]
+        assert fig.view == "weather_gz" and side in fig.data["weather"]
         from meshhydro import figures
 
         svg = figures.draw(fig)

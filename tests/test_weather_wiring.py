@@ -294,8 +294,11 @@ def test_kg_limits_bad_input_is_one_line(tmp_path, capsys):
 
 
 def test_criteria_plot_with_weather_and_arms_writes_the_figure(tmp_path, capsys):
-    # the criteria plot of a set with the weather criterion and a heeling arm draws their own view (PNG by suffix)
+    # the criteria plot of a set with the weather criterion and a heeling arm: the GZ curve with the limits,
+    # and the levers in their own view beside it (PNG by suffix; PNG signature, ISO/IEC 15948)
     path = _case(tmp_path)
     png = tmp_path / "gz.png"
     assert main(["criteria", path, "--heels", "0:60:2", "--quiet", "--plot", str(png)]) == 0  # the box meets the set
     assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert (tmp_path / "gz-levers.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert "gz-levers.png" in capsys.readouterr().err

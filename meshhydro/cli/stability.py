@@ -6,6 +6,8 @@ for a quick check. The analyses decide; these functions parse, call and render.
 from __future__ import annotations
 
 import argparse
+import os
+import sys
 
 from .. import analysis
 from ..criteria import read_criteria
@@ -93,24 +95,34 @@ def cmd_criteria(args: argparse.Namespace) -> int:
     bar.close()
     fig = None
     f = doc.section("results").figures[0]
-    if args.plot and f.view == "righting_curve":  # the plain curve: the report-grade view with the criteria drawn
+    levers = f if f.view == "criteria_gz" else None
+    if args.plot and f.view in ("righting_curve", "criteria_gz"):
+        # the report-grade view with the criteria drawn; heeling arms and the weather levers in a second file
         from ..document import Figure
         from ..figure_data import gz_data
 
         sides = analysis.choose_sides(inp.hull, inp.condition, args.direction)
-        fig = Figure(f.key, f.title, "gz_curve", gz_data(f.data, sides, inp.hull.name, cset=cset, report=rep,
+        curve = f.data["curve"] if levers is not None else f.data
+        fig = Figure(f.key, f.title, "gz_curve", gz_data(curve, sides, inp.hull.name, cset=cset, report=rep,
                                                         title=f.title))
-    # heeling arms, the weather levers and the exact/FSM or damaged/intact pair keep their own views
+    # the exact/FSM or damaged/intact pair keeps its own view
     output(args, doc, args.plot, fig)
+    if args.plot and levers is not None:
+        from ..plots import draw
+
+        stem, suffix = os.path.splitext(args.plot)
+        draw(levers, f"{stem}-levers{suffix}")
+        print(f"wrote {stem}-levers{suffix} (heeling arms and wind levers)", file=sys.stderr)
     return 0 if rep.passed else 1
 
 
-def _curve_opts(p: argparse.ArgumentParser) -> None:
+def _curve_opts(p: argparse.ArgumentParser, plot_help: str = "draw the GZ curve to this file (.png, .svg or .pdf)"
+                ) -> None:
     p.add_argument("--heels", default="0:180:1", help="START:STOP:STEP from 0 to 180 [deg] (default 0:180:1)")
     p.add_argument("--direction", choices=("auto", "both", "starboard", "port"), default="auto",
                    help="heel side(s); auto = both unless hull and load are port-starboard symmetric")
     p.add_argument("--fixed-trim", action="store_true", help="keep the upright trim instead of free trim")
-    p.add_argument("--plot", help="draw the GZ curve to this file (.png, .svg or .pdf)")
+    p.add_argument("--plot", help=plot_help)
     p.add_argument("--quiet", action="store_true", help="no progress bar")
 
 
@@ -144,6 +156,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     source_args(k)
     k.add_argument("--set", help="imo2008, imo2008-weather (built-in) or a criteria TOML file "
                                  "(default the case's [criteria] set, else imo2008)")
-    _curve_opts(k)
+    _curve_opts(k, "draw the GZ curve with the criteria's limits to this file (.png, .svg or .pdf); with heeling "
+                   "arms or the weather criterion, their levers go to FILE-levers.SUFFIX as well")
     out_args(k)
     k.set_defaults(func=cmd_criteria)
