@@ -33,9 +33,17 @@ COLOURS = {
 }
 
 
-def _draft_text(t: float) -> str:
-    """Label text for a draft T [m] (undefined when the hull z axis lies in the waterplane)."""
-    return f"draft {t:.3f} m" if np.isfinite(t) else "draft undefined (hull z in the waterplane)"
+def _draft_text(t: float, keel_depth: float) -> str:
+    """Label text for a draft T [m] and the vertical depth of K [m]: the draft while K is under water;
+    once K (the keel point on the centreline) is out of the water, as on a heeled catamaran, its height
+    above the water instead (a negative draft, measured along the heeled hull's z axis, reads as an error)."""
+    if np.isfinite(t) and t >= 0.0:
+        return f"draft {t:.3f} m"
+    if keel_depth < 0.0:
+        return f"keel point on the centreline {-keel_depth:.3f} m above the water"
+    return "draft undefined (hull z in the waterplane)"
+
+
 #: shares of the frame height kept free of the hull for the header (top) and the legend (foot)
 TOP_BAND, FOOT_BAND = 0.12, 0.07
 CAMERA_NOTE = {"astern": "camera: astern, looking forward level with the water (parallel projection); "
@@ -301,7 +309,7 @@ class Scene:
         side, lever = side_words(float(t.heel[k]), float(t.gz[k]))
         heel = f"heel {abs(t.heel[k]):.1f}° {side}" if t.heel[k] != 0 else "upright"
         self.header.set_text("upper_left", f"{heel}   GZ {abs(t.gz[k]):.3f} m {lever}\n"
-                             f"Δ {t.displacement:.3f} t   {_draft_text(t.draft[k])}   trim {t.trim[k]:+.2f}° "
+                             f"Δ {t.displacement:.3f} t   {_draft_text(t.draft[k], t.keel_depth[k])}   trim {t.trim[k]:+.2f}° "
                              f"(+ bow down){mtext}")
         self.plotter.render()
         rgb = self.plotter.screenshot(None, return_img=True)
