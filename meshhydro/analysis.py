@@ -266,7 +266,9 @@ def _levers_table(curve: RightingCurve) -> Table:
             r[f"opening:{name}"] = float(v)
         keys.append(f"opening:{name}")
     digits = {"heel": 1, "trim": 3}
-    cols = [Column(k, k, ROW_UNITS.get(k, ""), digits.get(k, 4)) for k in keys] + [Column("evaluations", "evaluations")]
+    # openings: their height above the water [m]
+    cols = [Column(k, k, ROW_UNITS.get(k, "m" if k.startswith("opening:") else ""), digits.get(k, 4)) for k in keys] \
+        + [Column("evaluations", "evaluations")]
     return Table("levers", "", cols, rows, text_keys=keys)
 
 

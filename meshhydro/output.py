@@ -287,18 +287,27 @@ def text_table(rows: Sequence[dict[str, Any]], keys: Sequence[str], units: dict[
     headers = headers or {}
     cols = []
     for k in keys:
+        vals = [r.get(k) for r in rows]
+        texts = all(v is None or isinstance(v, str) for v in vals)
+        if rows and texts and not any(vals):
+            continue  # a text column with nothing in it (no notes) is left out of the text table
         d = digits.get(k, 3) if isinstance(digits, dict) else digits
-        cells = format_column([r.get(k) for r in rows], d, max_digits=max(max_digits, d), exponent=k in exponent)
+        cells = format_column(vals, d, max_digits=max(max_digits, d), exponent=k in exponent)
         h = headers.get(k, k)
         u = f"[{units[k]}]" if units.get(k) else ""
         w = max([len(h), len(u)] + [len(c) for c in cells])
-        cols.append((h, u, cells, w))
-    lines = ["  ".join(h.rjust(w) for h, _, _, w in cols)]
-    if any(u for _, u, _, _ in cols):
-        lines.append("  ".join(u.rjust(w) for _, u, _, w in cols))
+        # long text (criterion wording, notes) reads from the left; numbers and short words align right
+        cols.append((h, u, cells, w, str.ljust if texts and w > TEXT_LEFT_WIDTH else str.rjust))
+    lines = ["  ".join(j(h, w) for h, _, _, w, j in cols).rstrip()]
+    if any(u for _, u, _, _, _ in cols):
+        lines.append("  ".join(j(u, w) for _, u, _, w, j in cols).rstrip())
     for i in range(len(rows)):
-        lines.append("  ".join(c[i].rjust(w) for _, _, c, w in cols))
+        lines.append("  ".join(j(c[i], w) for _, _, c, w, j in cols).rstrip())
     return "\n".join(lines) + "\n"
+
+
+#: text columns wider than this [characters] are aligned left in text tables
+TEXT_LEFT_WIDTH = 16
 
 
 def key_values(pairs: Iterable[tuple[str, Any, str]], digits: int = 4) -> str:

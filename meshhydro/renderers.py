@@ -54,10 +54,12 @@ def render_text(doc: Document) -> str:
 
 def render_csv(doc: Document) -> str:
     """The primary table (all columns) or the primary section's values as CSV, numbers rounded by their
-    unit (:data:`~meshhydro.output.CSV_DECIMALS`: lengths to 1e-6 m)."""
+    unit (:data:`~meshhydro.output.CSV_DECIMALS`: lengths to 1e-6 m), then the verdict and the caution as
+    lines starting with ``#`` (after the table, so that the first line stays the header; readers skip them
+    as comments, e.g. ``pandas.read_csv(..., comment="#")``)."""
     try:
         t = doc.table(doc.primary)
-        return to_csv(t.rows, [c.key for c in t.columns], units={c.key: c.unit for c in t.columns})
+        return to_csv(t.rows, [c.key for c in t.columns], units={c.key: c.unit for c in t.columns}) + _tail(doc)
     except KeyError:
         pass
     try:
@@ -65,7 +67,13 @@ def render_csv(doc: Document) -> str:
     except KeyError:
         raise InputError(f"{doc.title}: this output has no table to write as CSV") from None
     rows = [{"quantity": q.label, "value": _csv_value(q), "unit": q.unit} for q in s.values]
-    return to_csv(rows, ["quantity", "value", "unit"])
+    return to_csv(rows, ["quantity", "value", "unit"]) + _tail(doc)
+
+
+def _tail(doc: Document) -> str:
+    """The verdict (when the document has one) and the cautions as ``#`` lines."""
+    lines = [f"# verdict: {doc.verdict_text}"] if doc.verdict is not None and doc.verdict_text else []
+    return "".join(f"{line}\n" for line in lines + [f"# {c}" for c in doc.cautions])
 
 
 def _csv_value(q: Quantity) -> object:

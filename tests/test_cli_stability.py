@@ -65,8 +65,10 @@ def test_righting_csv_and_plot(case, tmp_path, capsys):
     png = tmp_path / "gz.png"
     assert main(["righting", case, "--condition", "light", "--heels", "0:60:5", "--format", "csv",
                  "--plot", str(png)]) == 0
-    lines = capsys.readouterr().out.strip().splitlines()
+    out = capsys.readouterr().out.strip().splitlines()
+    lines = [x for x in out if not x.startswith("#")]
     assert lines[0].startswith("heel,gz,kn") and len(lines) == 14  # symmetric: one side only
+    assert out[-1].startswith("# CAUTION:")
     assert png.stat().st_size > 10000
 
 

@@ -98,7 +98,7 @@ def _doc():
 def test_renderers_write_what_the_document_holds():
     assert render(_doc(), "text") == ("title\nvalues:\nvalue  1.2346 m\nnote: n\n\n   a\n [m]\n1.00\n3.50\n"
                                       "verdict: ok\ncareful\n")
-    assert render(_doc(), "csv") == "a,b\n1.0,2.0\n3.5,\n"
+    assert render(_doc(), "csv") == "a,b\n1.0,2.0\n3.5,\n# verdict: ok\n# careful\n"
     d = json.loads(render(_doc(), "json"))
     assert d["title"] == "title" and d["sections"][1]["tables"][0]["rows"][1] == {"a": 3.5, "b": None}
     with pytest.raises(InputError, match="unknown output format"):

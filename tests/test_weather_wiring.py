@@ -235,7 +235,9 @@ def test_kg_limits_cli_csv_and_json_where_gm_governs(tmp_path, capsys):
     spec = f"{ds[0]}:{ds[-1]}:{ds[1] - ds[0]}"
     assert main(["kg-limits", str(tmp_path / "b.stl"), "--displacements", spec, "--set", str(crit),
                  "--format", "csv"]) == 0
-    rows = list(csv.DictReader(io.StringIO(capsys.readouterr().out)))
+    text = capsys.readouterr().out
+    rows = list(csv.DictReader(io.StringIO("".join(x for x in text.splitlines(True) if not x.startswith("#")))))
+    assert text.splitlines()[-1].startswith("# CAUTION:")
     assert list(rows[0]) == ["displacement", "kg_max", "governing", "gm_required", "search_end", "method", "note"]
     assert {r["search_end"] for r in rows} == {"false"}
     t = np.array([1.0, 2.0, 3.0])
