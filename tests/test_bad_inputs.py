@@ -824,3 +824,18 @@ def test_a_folder_in_place_of_a_case_or_mesh(capsys):
 
     assert main(["float", os.path.join(ROOT, "meshes", "cases")]) == 2
     assert "is a folder; give a case file (.toml) or a mesh file" in capsys.readouterr().err
+
+
+def test_cli_option_errors_are_one_line_with_a_hint(capsys):
+    # a negative range read as an option: one line that says how to write it, no usage block
+    from meshhydro.cli import main
+
+    with pytest.raises(SystemExit) as exc:
+        main(["righting", BARGE_CASE, "--heels", "-30:30:5"])
+    err = capsys.readouterr().err
+    assert exc.value.code == 2 and err.count("\n") == 1
+    assert "--heels=-30:30:5" in err and "usage:" not in err
+    with pytest.raises(SystemExit) as exc:
+        main(["table", BARGE, "--nonesuch"])
+    err = capsys.readouterr().err
+    assert exc.value.code == 2 and err.count("\n") == 1 and "--nonesuch" in err

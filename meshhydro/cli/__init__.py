@@ -13,7 +13,7 @@ from __future__ import annotations
 import argparse
 import sys
 import traceback
-from typing import Sequence
+from typing import NoReturn, Sequence
 
 from .. import __version__
 from ..errors import MeshHydroError
@@ -31,8 +31,18 @@ from . import tanks as cli_tanks
 # ---------------------------------------------------------------------------- main
 
 
+class _Parser(argparse.ArgumentParser):
+    """argparse with the CLI's one-line errors: what is wrong and where to look, no usage block."""
+
+    def error(self, message: str) -> "NoReturn":  # type: ignore[override]
+        hint = ""
+        if "expected one argument" in message:
+            hint = "; a value starting with '-' goes after '=', as in --heels=-30:30:5"
+        self.exit(2, f"{self.prog}: error: {message}{hint} (see {self.prog} --help)\n")
+
+
 def build_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(
+    p = _Parser(
         prog="meshhydro",
         description="Exact hydrostatics and intact stability from a hull surface mesh. " + CAUTION,
     )
