@@ -446,6 +446,21 @@ def params_from_spec(spec: Any, where: str) -> Any:
         raise InputError(f"{where}: kind {kind}: {exc}") from None
 
 
+def describe(kind: str, params: Any) -> str:
+    """Words for a criterion its file gave no text for, from its kind and parameters (so that two limits of
+    one kind, such as areas over different ranges, can be told apart in tables)."""
+    words = " ".join("GZ" if w == "gz" else "GM" if w == "gm" else w for w in kind.split("_"))
+    flood = ", or to the downflooding angle if less"
+    if isinstance(params, AreaParams):
+        return f"{words} from {params.start:g}° to {params.end:g}°" + (flood if params.to_flooding else "")
+    if isinstance(params, AngleParams):
+        return f"{words} {params.angle:g}°"
+    if isinstance(params, ArmParams):
+        end = f" to {params.end:g}°" if params.end is not None else ""
+        return f"{words}, arm {params.arm}{end}" + (flood if params.to_flooding else "")
+    return words
+
+
 def criteria_from_spec(spec: Any, source: str) -> CriteriaSet:
     """A :class:`CriteriaSet` of registry criteria from a validated :class:`~meshhydro.schemas.CriteriaSpec`.
 
@@ -462,7 +477,8 @@ def criteria_from_spec(spec: Any, source: str) -> CriteriaSet:
         params = params_from_spec(c, where)
         limit = float(c.limit)
         mn, mx = (limit, None) if c.is_minimum else (None, limit)
-        items.append(Criterion(id=cid, kind=c.kind, minimum=mn, maximum=mx, text=text, params=params))
+        items.append(Criterion(id=cid, kind=c.kind, minimum=mn, maximum=mx, text=text or describe(c.kind, params),
+                               params=params))
     return CriteriaSet(name=spec.name or os.path.basename(source), source=spec.source or "", items=tuple(items))
 
 

@@ -427,7 +427,8 @@ def criteria_section(rv: Review, cr: ConditionRun) -> Section:
     """The criteria table with margins and the condition's verdict."""
     old = cr.criteria_doc.section("results")
     cols = [Column("id", "id"), Column("side", "side"), Column("criterion", "criterion"),
-            Column("required", "required", "", 4), Column("attained", "attained", "", 4),
+            Column("bound", "bound (min or max)"), Column("required", "required", "", 4),
+            Column("attained", "attained", "", 4),
             Column("margin", "margin", "", 4), Column("unit", "unit"), Column("result", "result")]
     keys = [c.key for c in cols]
     rows = [{k: r[k] for k in keys} for r in old.tables[0].rows]

@@ -394,6 +394,13 @@ def test_criteria_one_clause_may_hold_several_limits():
             {"id": "2.2.1", "kind": "area", "from": 0.0, "to": 40.0, "minimum": 0.09},
             {"id": "2.2.1", "kind": "area", "from": 30.0, "to": 40.0, "minimum": 0.03}]
     assert [c.id for c in validate_criteria({"criterion": spec}, C).criteria] == ["2.2.1"] * 3
+    # without a text each limit is described by its parameters, so that the rows can be told apart
+    from meshhydro.criteria import criteria_from_spec
+
+    spec[1]["to_flooding"] = True
+    texts = [c.text for c in criteria_from_spec(validate_criteria({"criterion": spec}, C), C).items]
+    assert texts == ["area from 0° to 30°", "area from 0° to 40°, or to the downflooding angle if less",
+                     "area from 30° to 40°"]
 
 
 def test_criteria_empty():
