@@ -29,13 +29,20 @@ def kg_limits_figure(data: Mapping[str, Any]) -> Any:
         except (KeyError, TypeError, ValueError):
             raise InputError("kg_limits: every row needs numbers 'displacement' and 'kg_max'") from None
         colour, ls = side_style(0)
-        ax.plot(d, kg, color=colour, ls=ls, lw=1.8, label="largest KG (fluid-corrected)")
+        end = np.array([r.get("governing") is None for r in rows])
+        # solid between limits found; dotted where an end is only a lower bound (the limit lies above it)
+        for j in range(len(d) - 1):
+            bound = bool(end[j] or end[j + 1])
+            ax.plot(d[j:j + 2], kg[j:j + 2], color=colour, lw=1.2 if bound else 1.8, ls=":" if bound else ls,
+                    label=None)
+        ax.plot([], [], color=colour, ls=ls, lw=1.8, label="largest KG (fluid-corrected)")
+        if len(d) == 1:
+            ax.plot(d, kg, "o", color=colour, ms=4)
         govs = sorted({str(r["governing"]) for r in rows if r.get("governing") is not None})
         for i, gov in enumerate(govs):
             m = np.array([str(r.get("governing")) == gov for r in rows])
             ax.plot(d[m], kg[m], MARKERS[i % len(MARKERS)], ls="none", ms=6, color=side_style(i + 1)[0],
                     label=f"governed by {gov}")
-        end = np.array([r.get("governing") is None for r in rows])
         if end.any():
             ax.plot(d[end], kg[end], "^", ls="none", ms=8, mfc="white", color="0.3",
                     label="all pass to the top of the search (a lower bound)")
@@ -55,6 +62,11 @@ def kg_limits_figure(data: Mapping[str, Any]) -> Any:
     ax.set_ylabel("largest KG, fluid-corrected [m]")
     ax.grid(True, alpha=0.3)
     if rows:
-        ax.legend(loc="upper left", bbox_to_anchor=(1.12, 1.0), fontsize=8.5, frameon=False)
+        handles, labels = ax.get_legend_handles_labels()
+        for other in fig.axes:  # the GM line on the twin axis joins the legend
+            if other is not ax:
+                h2, l2 = other.get_legend_handles_labels()
+                handles, labels = handles + h2, labels + l2
+        ax.legend(handles, labels, loc="upper left", bbox_to_anchor=(1.12, 1.0), fontsize=8.5, frameon=False)
     ax.set_title(data.get("title") or f"{data.get('vessel', '')}: KG limits".lstrip(": "))
     return fig

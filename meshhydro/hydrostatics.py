@@ -139,9 +139,11 @@ def compute(
                 f"nothing is submerged at draft {draft:.4f} m (heel {heel:g}°, trim {trim:g}°): "
                 f"the waterplane is at or below the lowest point of the hull (level {lowest:.4f} m)"
             )
+        highest = float((prep.vertices @ n).max() + prep.origin @ n)
         raise CannotFloatError(
-            f"the hull is fully submerged at draft {draft:.4f} m (no waterplane): "
-            f"hydrostatic particulars of a waterplane do not exist"
+            f"the hull is fully submerged at draft {draft:.4f} m (no waterplane): the waterplane is at or above "
+            f"the highest point of the hull (level {highest:.4f} m); hydrostatic particulars of a waterplane do not "
+            f"exist there (a submerged body's values come from the submergence sequence)"
         )
     v = c.volume
     d = float(n @ p)

@@ -66,8 +66,8 @@ def kg_limits_analysis(hull: Any, displacements: Sequence[float], cset: Criteria
     if cset.clauses:
         notes += applicability_notes(hull.length, len(hull.report.bodies), clauses=cset.clauses)
     sec = Section("limits", "", tables=[Table("limits", "", cols, rows)], notes=[f"note: {n}" for n in notes])
-    sec.figures.append(Figure("kg_limits", f"KG limits: {os.path.basename(hull.name)}\n{cset.name}",
-                              "kg_limits", {"rows": rows}))
+    title = f"KG limits: {os.path.basename(hull.name)}\n{cset.name}"
+    sec.figures.append(Figure("kg_limits", title, "kg_limits", {"rows": rows, "title": title}))
     doc = Document(title=f"KG limits: {hull.name}  ({cset.name}; density {density:g} t/m³, free trim)",
                    vessel=hull.name, header=[f"source: {cset.source}"], sections=[sec], cautions=[CAUTION],
                    primary="limits", meta={"density": density})
