@@ -21,10 +21,22 @@ PLOTTED = {
 _MAX_LEGEND = 8
 
 
-def _series(rows: Sequence[dict[str, Any]], x: str, others: Sequence[str]) -> dict[str, list[dict[str, Any]]]:
+def _unit(spec: Any, name: str) -> str:
+    """The unit of a swept parameter: the loading's (displacement t, kg m) or the generator's."""
+    if name in ("displacement", "kg"):
+        return {"displacement": "t", "kg": "m"}[name]
+    from .generators import PARAMETERS
+
+    p = PARAMETERS.get(getattr(spec.study, "generator", None) or "", {}).get(name)
+    return "" if p is None or p.unit == "-" else p.unit
+
+
+def _series(rows: Sequence[dict[str, Any]], x: str, others: Sequence[str],
+            units: dict[str, str]) -> dict[str, list[dict[str, Any]]]:
     out: dict[str, list[dict[str, Any]]] = {}
     for r in rows:
-        label = ", ".join(f"{o}={r.get(o):g}" if o != "hull" else str(r.get(o)) for o in others)
+        label = ", ".join(f"{o} = {r.get(o):g}{(' ' + units[o]) if units.get(o) else ''}" if o != "hull"
+                          else str(r.get(o)) for o in others)
         out.setdefault(label, []).append(r)
     for v in out.values():
         v.sort(key=lambda r: r[x])
@@ -56,9 +68,10 @@ def plot_study(rows: Sequence[dict[str, Any]], spec: Any, out_dir: str) -> list[
     multi_hull = len({r.get("hull") for r in rows}) > 1
     figs = [f for f in PLOTTED if any(r.get(f) is not None for r in rows)]
     paths = []
+    units = {p: _unit(spec, p) for p in swept}
     for x in swept:
         others = (["hull"] if multi_hull else []) + [p for p in swept if p != x]
-        series = _series(rows, x, others)
+        series = _series(rows, x, others, units)
         ncol = 4 if len(figs) > 4 else max(len(figs), 1)
         nrow = max(1, -(-len(figs) // ncol))
         fig, axes = plt.subplots(nrow, ncol, figsize=(3.6 * ncol, 2.9 * nrow + 0.8), squeeze=False)
@@ -66,15 +79,20 @@ def plot_study(rows: Sequence[dict[str, Any]], spec: Any, out_dir: str) -> list[
             for label, rs in series.items():
                 ys = [float("nan") if r.get(f) is None else r[f] for r in rs]
                 ax.plot([r[x] for r in rs], ys, marker="o", ms=3, lw=1.2, label=label or None)
+                bad = [(r[x], y) for r, y in zip(rs, ys) if r.get("verdict") == "fail"]
+                if bad:  # the cases that do not meet the criteria: a ring round the point
+                    ax.plot(*zip(*bad), "o", ms=8, mfc="none", mec="tab:red", mew=1.2, ls="none")
             _flat_axis(ax, [r.get(f) for r in rows])
-            ax.set_xlabel(x)
+            ax.set_xlabel(f"{x} [{units[x]}]" if units.get(x) else x)
             ax.set_ylabel(PLOTTED[f])
             ax.grid(True, alpha=0.3)
         for ax in list(axes.flat)[len(figs):]:
             ax.set_visible(False)
         if others and len(series) <= _MAX_LEGEND:
             axes.flat[0].legend(fontsize=7)
-        fig.suptitle(f"{spec.study.name}: key figures against {x}")
+        failed = any(r.get("verdict") == "fail" for r in rows)
+        fig.suptitle(f"{spec.study.name}: key figures against {x}"
+                     + ("  (red ring: criteria not met)" if failed else ""))
         fig.text(0.5, 0.005, CAUTION_SHORT, ha="center", va="bottom", fontsize=7, color="0.3")
         fig.tight_layout(rect=(0, 0.03, 1, 0.97))
         path = os.path.join(out_dir, f"study_{x}.png")
