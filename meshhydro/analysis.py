@@ -351,6 +351,13 @@ def _check(inp: CaseInput, curve: RightingCurve, cset: CriteriaSet, sides: tuple
     return rep, table, upright
 
 
+#: relative difference between GM0 and the GZ curve's slope at 0° beyond which a note says GM0 describes
+#: only the very start of the curve (common practice: on a wall-sided form the two agree closely)
+GM_SLOPE_RTOL = 0.1
+#: ... and the least absolute difference [m] for it (a finite-difference slope over coarse heel steps)
+GM_SLOPE_ATOL = 0.05
+
+
 def _extra_notes(inp: CaseInput, curve: RightingCurve, cset: CriteriaSet, upright: Any) -> list[str]:
     """Notes beside a criteria check: a submerged body, and where the set says it applies."""
     notes = []
@@ -358,6 +365,13 @@ def _extra_notes(inp: CaseInput, curve: RightingCurve, cset: CriteriaSet, uprigh
         notes.append(f"fully submerged at every angle (B fixed, BM = 0, M on B): {SUBMERGED_NOTE}")
     if cset.clauses and upright is not None:
         notes += applicability_notes(upright.lwl, len(inp.hull.report.bodies), clauses=cset.clauses)
+    gm_up, gm_slope = curve.gm_upright, curve.gm_from_slope()
+    if any(c.kind == "gm" for c in cset.items) and gm_up is not None and gm_slope is not None and \
+            abs(gm_slope - gm_up) > max(GM_SLOPE_RTOL * abs(gm_up), GM_SLOPE_ATOL):
+        notes.append(f"GM0 {gm_up:.3f} m is the upright waterplane's, but the GZ curve's slope at 0° gives "
+                     f"{gm_slope:.3f} m per radian: the waterplane changes within the first degrees (a float or "
+                     "a hull lifting or immersing), so GM0 describes only the very start of the curve; judge "
+                     "stability by the curve's areas and angles there")
     return notes
 
 

@@ -311,3 +311,20 @@ def test_open_hull_floats_below_its_rim_and_says_when_it_cannot():
     assert eq.draft == pytest.approx(1.0, rel=1e-10)
     with pytest.raises(OpenRimError, match="open rim"):
         hull.equilibrium(RHO * 90.0, (5.0, 0.0, 0.8))  # needs more than the 80 m³ below the rim
+
+
+def test_gm0_note_where_the_curve_leaves_it_at_once():
+    # GM0 is the slope of GZ at 0° where the waterplane varies smoothly (common practice; a wall-sided box
+    # keeps it to second order); the demo outrigger's float touches the water upright, so the upright
+    # waterplane's GM0 and the curve's slope differ and the criteria output must say so; the barge not
+    import os
+
+    from meshhydro import analysis
+
+    root = os.path.join(os.path.dirname(__file__), "..", "meshes", "cases")
+    heels = np.arange(0.0, 61.0, 1.0)
+    for name, expected in (("kestrel_outrigger.toml", True), ("brindle_barge.toml", False)):
+        inp = analysis.from_case(os.path.join(root, name))
+        rep, doc = analysis.criteria_analysis(inp, IMO_2008_GENERAL, heels)
+        notes = " ".join(doc.section("results").notes)
+        assert ("is the upright waterplane's" in notes) == expected, name
