@@ -423,15 +423,23 @@ def righting_section(rv: Review, cr: ConditionRun) -> Section:
     return sec
 
 
+def _limit_text(row: dict[str, Any]) -> str | None:
+    """'≥ 0.0550' or '≤ 12.8536' from a criteria row's bound and required value."""
+    req = row.get("required")
+    if req is None:
+        return None
+    return f"{'≤' if str(row.get('bound', '')).startswith('max') else '≥'} {float(req):.4f}"
+
+
 def criteria_section(rv: Review, cr: ConditionRun) -> Section:
     """The criteria table with margins and the condition's verdict."""
     old = cr.criteria_doc.section("results")
     cols = [Column("id", "id"), Column("side", "side"), Column("criterion", "criterion"),
-            Column("bound", "bound (min or max)"), Column("required", "required", "", 4),
-            Column("attained", "attained", "", 4),
+            Column("required", "required"), Column("attained", "attained", "", 4),
             Column("margin", "margin", "", 4), Column("unit", "unit"), Column("result", "result")]
     keys = [c.key for c in cols]
-    rows = [{k: r[k] for k in keys} for r in old.tables[0].rows]
+    # the limit with its sense: ≥ for a minimum, ≤ for a maximum (a maximum read as a minimum looks missed)
+    rows = [{**{k: r[k] for k in keys}, "required": _limit_text(r)} for r in old.tables[0].rows]
     notes = [f"{r['id']} ({r['side']}): {r['note']}" for r in old.tables[0].rows if r.get("note")]
     sec = Section("criteria", f"Criteria: {cr.report.set_name}", tables=[Table("results", "", cols, rows)],
                   notes=notes + list(old.notes))

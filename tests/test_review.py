@@ -47,7 +47,10 @@ def test_report_covers_the_case(barge_review):
         assert len(table.rows) == len(IMO_2008_GENERAL.items) * len(cr.sides)
         for r in table.rows:
             if r["attained"] is not None:
-                assert r["margin"] == pytest.approx(r["attained"] - r["required"])
+                # the limit reads "≥ x" for a minimum (margin = attained - x), "≤ x" for a maximum
+                sense, req = r["required"].split()
+                expected = r["attained"] - float(req) if sense == "≥" else float(req) - r["attained"]
+                assert r["margin"] == pytest.approx(expected, abs=1e-4)
     assert doc.verdict == all(cr.report.passed for cr in rv.runs)
     assert CAUTION in doc.cautions and CAUTION in doc.section("assumptions").notes
 

@@ -217,11 +217,20 @@ def density_override(args: argparse.Namespace) -> float | None:
 def load_mesh(args: argparse.Namespace, path: str | None = None) -> FloatingHull:
     offset = parse_vec(str(mesh_option(args, "offset")), "--offset")
     with progress(args, 1, "mesh") as bar:
-        return load_hull(path or args.mesh, units=mesh_option(args, "units"), forward=mesh_option(args, "forward"),
+        hull = load_hull(path or args.mesh, units=mesh_option(args, "units"), forward=mesh_option(args, "forward"),
                          up=mesh_option(args, "up"), offset=offset, flip_inside_out=bool(args.flip_inside_out),
                          merge_overlaps=bool(args.merge_overlaps),
                          close_holes=bool(getattr(args, "close_holes", False)), x_aft=getattr(args, "x_aft", None),
                          x_fore=getattr(args, "x_fore", None), progress=bar.stage)
+    warn_mesh(hull)
+    return hull
+
+
+def warn_mesh(hull: FloatingHull) -> None:
+    """The mesh's health warnings (an open rim, degenerate faces, unusual axes, ...) on standard error, so
+    that a command other than ``check`` does not pass them over in silence."""
+    for w in hull.report.warnings:
+        print(f"meshhydro: warning: {w}", file=sys.stderr)
 
 
 def is_case(path: str) -> bool:
@@ -260,7 +269,9 @@ def _load_source(args: argparse.Namespace, openings: bool) -> CaseInput:
         refuse_mesh_options(args)
         refuse(args, ["x_aft", "x_fore"], f"not taken with a case file; {args.source} gives x_aft/x_fore in its [hull]")
         with progress(args, 1, "mesh") as bar:
-            return from_case(args.source, args.condition, density=density_override(args), progress=bar.stage)
+            inp = from_case(args.source, args.condition, density=density_override(args), progress=bar.stage)
+        warn_mesh(inp.hull)
+        return inp
     refuse(args, ["condition"], f"{args.source} is a mesh, not a case file with conditions")
     if args.displacement is None or not args.cog:
         raise InputError(f"{args.source}: a mesh needs --displacement T and --cog X,Y,Z (or use a case file)")
