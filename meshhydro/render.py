@@ -224,8 +224,9 @@ class Scene:
             r = 0.5 * float(np.linalg.norm(ext))
             direction = np.array([-1.0, -0.9, 0.6])
             direction /= np.linalg.norm(direction)
-            f = centre + np.array([0.0, 0.0, 0.25 * r])  # aim above the centre: the hull sits below the header
-            p.camera_position = [tuple(f + 2.9 * r * direction), tuple(f), (0.0, 0.0, 1.0)]
+            # aim a little below the centre and stand back: the hull clears the header and the legend at every angle
+            f = centre + np.array([0.0, 0.0, -0.08 * r])
+            p.camera_position = [tuple(f + 3.6 * r * direction), tuple(f), (0.0, 0.0, 1.0)]
             p.camera.view_angle = 30.0
         self._camera_set = True
 
