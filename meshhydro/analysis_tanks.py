@@ -185,16 +185,19 @@ def curves_figure(key: str, title: str, cond: Condition, curve: RightingCurve,
 
 
 def _with_limit_below_top(tank: Any, rows: list[dict[str, Any]], heel: float, trim: float) -> list[dict[str, Any]]:
-    """The rows with one more just under the top sounding (a millionth of the sounding range below), for the
-    figure: a full tank has no free surface, but just below a flat top the surface is the whole top, so
-    the free-surface moment drops to zero at the top itself rather than along the last step."""
-    if len(rows) < 2 or rows[-1]["fs_area"] != 0.0:
+    """The rows with one more just above an empty bottom and one just under a full top (a millionth of the
+    sounding range away), for the figure: an empty or full tank has no free surface, but just above a flat
+    bottom or just under a flat top the surface is whole, so the free-surface moment steps there rather
+    than along the first or last step."""
+    if len(rows) < 2:
         return rows
-    top, prev = rows[-1]["sounding"], rows[-2]["sounding"]
-    below = top - 1e-6 * max(top - rows[0]["sounding"], 1e-9)
-    if not prev < below < top:
-        return rows
-    return rows[:-1] + calibration_table(tank, [below], heel=heel, trim=trim) + rows[-1:]
+    gap = 1e-6 * max(rows[-1]["sounding"] - rows[0]["sounding"], 1e-9)
+    out = list(rows)
+    if rows[-1]["fs_area"] == 0.0 and rows[-2]["sounding"] < rows[-1]["sounding"] - gap:
+        out[-1:-1] = calibration_table(tank, [rows[-1]["sounding"] - gap], heel=heel, trim=trim)
+    if rows[0]["volume"] == 0.0 and rows[0]["sounding"] + gap < rows[1]["sounding"]:
+        out[1:1] = calibration_table(tank, [rows[0]["sounding"] + gap], heel=heel, trim=trim)
+    return out
 
 
 def tank_tables_analysis(tanks: Sequence[Any], step: float, *, heel: float = 0.0, trim: float = 0.0,

@@ -37,7 +37,8 @@ def calibration_table(tank: Tank, soundings: Sequence[float], *, heel: float = 0
     attitude. Columns and units: :data:`CALIBRATION_UNITS`; ``i_t``/``i_l`` are the free
     surface's second moments about its own centroid (axes along and across the hull x
     projected on the surface), ``fsm_t = ρ i_t``, ``fsm_l = ρ i_l``. The centre of an
-    empty tank is undefined and left ``None``.
+    empty tank is undefined and left ``None``. An empty tank and a full one have no free surface
+    (zero area and moments); just above the bottom and just under the top the surface is whole.
     """
     up = up_vector(float(heel), float(trim))
     rows = []
@@ -46,7 +47,8 @@ def calibration_table(tank: Tank, soundings: Sequence[float], *, heel: float = 0
         full = c.volume >= tank.capacity or at_top(tank, h, up)  # a level at the top fills the tank
         vol = tank.capacity if full else c.volume
         cen = tank.centroid_full if full else c.centroid
-        area, i_t, i_l = (0.0, 0.0, 0.0) if full else (c.waterplane_area, c.inertia_t, c.inertia_l)
+        area, i_t, i_l = (0.0, 0.0, 0.0) if full or not vol > 0.0 else (c.waterplane_area, c.inertia_t,
+                                                                           c.inertia_l)
         rows.append({
             "sounding": float(h), "volume": vol, "fraction": vol / tank.capacity, "mass": tank.density * vol,
             "lcg": float(cen[0]) if vol > 0 else None, "tcg": float(cen[1]) if vol > 0 else None,
