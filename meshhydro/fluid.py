@@ -210,7 +210,7 @@ class _SlackSet:
                              ("inertia_t", st.i_t), ("inertia_l", st.i_l),
                              ("inertia_uv", _uv_moment(st, axes))):
                 f[key][i] = val
-            f["cuts"][i] = st.cuts
+            f["cuts"][i] = st.cuts + abs(int(f["cuts"][i]))  # the joint attempt's cuts count too
         c_wp = f["waterplane_centroid"]
         if self.points is not None:
             self.shift = (c_wp - self.points) @ n

@@ -104,6 +104,21 @@ def draft_normal(heel: float, trim: float) -> np.ndarray:
     return n
 
 
+def _no_waterplane(prep: kernel.Prepared, n: np.ndarray, volume: float, draft: float, heel: float,
+                   trim: float) -> CannotFloatError:
+    """The error for a draft where the plane misses the hull: nothing, or everything, under water."""
+    s = prep.vertices @ n
+    lowest, highest = float(s.min() + prep.origin @ n), float(s.max() + prep.origin @ n)
+    if volume <= 0.0:
+        return CannotFloatError(
+            f"nothing is submerged at draft {draft:.4f} m (heel {heel:g}°, trim {trim:g}°): "
+            f"the waterplane is at or below the lowest point of the hull (level {lowest:.4f} m)")
+    return CannotFloatError(
+        f"the hull is fully submerged at draft {draft:.4f} m (no waterplane): the waterplane is at or above "
+        f"the highest point of the hull (level {highest:.4f} m); hydrostatic particulars "
+        f"of a waterplane do not exist there (a submerged body's values come from the submergence sequence)")
+
+
 def compute(
     prep: kernel.Prepared,
     draft: float,
@@ -133,18 +148,7 @@ def compute(
     p = np.array([x_ref, 0.0, float(draft)])
     c = kernel.cut(prep, p, n)
     if c.volume <= 0.0 or c.waterplane_area <= 0.0:
-        lowest = float((prep.vertices @ n).min() + prep.origin @ n)
-        if c.volume <= 0.0:
-            raise CannotFloatError(
-                f"nothing is submerged at draft {draft:.4f} m (heel {heel:g}°, trim {trim:g}°): "
-                f"the waterplane is at or below the lowest point of the hull (level {lowest:.4f} m)"
-            )
-        highest = float((prep.vertices @ n).max() + prep.origin @ n)
-        raise CannotFloatError(
-            f"the hull is fully submerged at draft {draft:.4f} m (no waterplane): the waterplane is at or above "
-            f"the highest point of the hull (level {highest:.4f} m); hydrostatic particulars of a waterplane do not "
-            f"exist there (a submerged body's values come from the submergence sequence)"
-        )
+        raise _no_waterplane(prep, n, c.volume, draft, heel, trim)
     v = c.volume
     d = float(n @ p)
     t_i = d - float((prep.vertices @ n).min() + prep.origin @ n)

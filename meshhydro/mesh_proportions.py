@@ -38,6 +38,8 @@ def axis_findings(extent: np.ndarray) -> list[str]:
     """Hints (warnings) when the hull's proportions suggest its file used other axes than x forward, z up."""
     ex, ey, ez = (float(e) for e in extent)
     notes = []
+    if not (ex > 0.0 and ey > 0.0):  # a flat or degenerate mesh: its proportions say nothing about axes
+        return notes
     if max(ey, ez) > SHORT_RATIO * ex:
         axis, e = ("y", ey) if ey >= ez else ("z", ez)
         notes.append(f"the longest extent is along {axis} ({e:.4g} m; x only {ex:.4g} m): if x is not forward "

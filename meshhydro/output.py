@@ -9,7 +9,6 @@ the same target. Errors name the target, never the temporary.
 from __future__ import annotations
 
 import contextlib
-import csv
 import io
 import json
 import math
@@ -289,8 +288,8 @@ def text_table(rows: Sequence[dict[str, Any]], keys: Sequence[str], units: dict[
     for k in keys:
         vals = [r.get(k) for r in rows]
         texts = all(v is None or isinstance(v, str) for v in vals)
-        if rows and texts and not any(vals):
-            continue  # a text column with nothing in it (no notes) is left out of the text table
+        if rows and texts and any(isinstance(v, str) for v in vals) and not any(vals):
+            continue  # a text column with nothing in it (no notes) is left out; an all-empty number column stays
         d = digits.get(k, 3) if isinstance(digits, dict) else digits
         cells = format_column(vals, d, max_digits=max(max_digits, d), exponent=k in exponent)
         h = headers.get(k, k)
@@ -424,13 +423,30 @@ def _fmt_csv(v: Any, decimals: int | None) -> str:
     return str(v)
 
 
+class _CsvWriter:
+    """RFC 4180 rows that also quote a field holding ``#``, so that a reader told to skip ``#`` comment
+    lines (the verdict and caution after a table) cannot cut a name such as "hatch #2" short."""
+
+    def __init__(self, buf: io.StringIO) -> None:
+        self.buf = buf
+
+    def writerow(self, cells: Sequence[Any]) -> None:
+        out = []
+        for c in cells:
+            t = "" if c is None else str(c)
+            if any(ch in t for ch in ',"\r\n#'):
+                t = '"' + t.replace('"', '""') + '"'
+            out.append(t)
+        self.buf.write(",".join(out) + "\n")
+
+
 def to_csv(rows: Sequence[dict[str, Any]], keys: Sequence[str], *, units: dict[str, str] | None = None,
            decimals: dict[str, int] | int | None = None) -> str:
     """CSV text with a header row. Floats are rounded per column: ``decimals`` (per key or for all), else
     by the column's unit in ``units`` (:data:`CSV_DECIMALS`), else to 12 significant digits."""
     units = units or {}
     buf = io.StringIO()
-    w = csv.writer(buf, lineterminator="\n")
+    w = _CsvWriter(buf)
     w.writerow(keys)
     dec = {}
     for k in keys:

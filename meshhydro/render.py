@@ -34,14 +34,15 @@ COLOURS = {
 
 
 def _draft_text(t: float, keel_depth: float) -> str:
-    """Label text for a draft T [m] and the vertical depth of K [m]: the draft while K is under water;
-    once K (the keel point on the centreline) is out of the water, as on a heeled catamaran, its height
-    above the water instead (a negative draft, measured along the heeled hull's z axis, reads as an error)."""
-    if np.isfinite(t) and t >= 0.0:
-        return f"draft {t:.3f} m"
+    """Label text for a draft T [m] and the vertical depth of K [m] (positive under water): the draft
+    while K is under water and the hull is heeled less than 90°; once K (the keel point on the centreline)
+    is out of the water, as on a heeled catamaran, its height above the water; past 90° with K under
+    water, its depth (a draft measured along the heeled hull's z axis would read as an error there)."""
     if keel_depth < 0.0:
         return f"keel point on the centreline {-keel_depth:.3f} m above the water"
-    return "draft undefined (hull z in the waterplane)"
+    if np.isfinite(t) and t >= 0.0:
+        return f"draft {t:.3f} m"
+    return f"keel point on the centreline {keel_depth:.3f} m under water (heeled 90° or more)"
 
 
 #: shares of the frame height kept free of the hull for the header (top) and the legend (foot)
@@ -108,12 +109,21 @@ class Scene:
         self.trace = trace
         self.split = split
         self.K = np.array([hull.x_ref, 0.0, 0.0])
+        self.size = size
+        self.camera = camera
         self.plotter = pv.Plotter(off_screen=True, window_size=list(size))
+        try:
+            self._build(pv, smooth)
+        except BaseException:  # the off-screen window is not left open behind a failed scene
+            self.plotter.close()
+            raise
+
+    def _build(self, pv: Any, smooth: bool) -> None:
+        """Everything of the scene but the plotter: water, hull, camera, marks."""
+        hull, trace = self.hull, self.trace
         # the sample count takes effect when the window is first drawn, so it is set before that
         self.plotter.ren_win.SetMultiSamples(MULTI_SAMPLES if smooth else 0)
         self.plotter.set_background(COLOURS["background"])
-        self.size = size
-        self.camera = camera
         self.xc = float(0.5 * (hull.bounds[0][0] + hull.bounds[1][0]) - self.K[0])
         rel = hull.vertices - self.K
         #: largest distance of the hull from the heel axis: the frame holds it at every angle
@@ -309,9 +319,9 @@ class Scene:
             self.lines[name].points = np.array([[q[0], q[1], max(q[2] - below * ra, self.z_foot)], [q[0], q[1], top]])
         side, lever = side_words(float(t.heel[k]), float(t.gz[k]))
         heel = f"heel {abs(t.heel[k]):.1f}° {side}" if t.heel[k] != 0 else "upright"
+        where = _draft_text(t.draft[k], t.keel_depth[k])
         self.header.set_text("upper_left", f"{heel}   GZ {abs(t.gz[k]):.3f} m {lever}\n"
-                             f"Δ {t.displacement:.3f} t   {_draft_text(t.draft[k], t.keel_depth[k])}   trim {t.trim[k]:+.2f}° "
-                             f"(+ bow down){mtext}")
+                             f"Δ {t.displacement:.3f} t   {where}   trim {t.trim[k]:+.2f}° (+ bow down){mtext}")
         self.plotter.render()
         rgb = self.plotter.screenshot(None, return_img=True)
         if path is not None:

@@ -29,6 +29,7 @@ from . import review_parts as P
 from .criteria import CAUTION, CriteriaSet, Report, read_criteria
 from .document import Column, Document, Figure, Quantity, Section, Table
 from .equilibrium import Equilibrium
+from .analysis_tanks import method_note
 from .figure_data import gz_data
 from .loading import Case, read_case
 from .stability import RightingCurve
@@ -276,21 +277,19 @@ def sweep_section(rv: Review) -> Section | None:
     name = rv.case.condition(o.sweep_condition).name
     c = next((cr.inp.condition for cr in rv.runs if cr.inp.condition.name == name), None)
     c = c if c is not None else resolve_condition(rv.case, rv.hull, name, tanks=rv.tanks)
-    if c.flooded:  # the sweep floats the intact hull: its levers would not be this condition's
-        return Section("sweep", f"Heel sweep: {c.name}", notes=[
-            f"no sweep drawn: condition {c.name!r} has flooded compartments and the sweep shows the intact hull; "
-            "choose an intact condition for the sweep."])
     bar = rv.bars(len(o.sweep_heels), f"sweep, {c.name}")
-    try:
+    try:  # the same load and flooding as the condition's curve and the sweep command
         tr = heel_trace(rv.hull, c.displacement, c.cog, o.sweep_heels, density=rv.case.density, fsm=c.fsm,
-                        label=c.name, progress=bar, openings=rv.case.openings)
+                        label=c.name, progress=bar, openings=rv.case.openings,
+                        load=c.load() if c.tanks else None, compartments=c.flooded)
     finally:
         bar.close()
     sec = Section("sweep", f"Heel sweep: {c.name}")
     if c.tanks:
-        sec.notes.append("tank contents in the sweep: solid weights at their upright centres with G raised by "
-                         "FSM/Δ (the free-surface-moment method); the condition's own levers are under its "
-                         "righting levers.")
+        sec.notes += [f"tank contents in the sweep as in the condition's curve: {n}" for n in method_note(c)]
+    if c.flooded:
+        sec.notes.append(f"flooded (lost buoyancy): {', '.join(x.name for x in c.flooded)}; the frames show the "
+                         "hull at the damaged attitude, with B and M of the hull less the flooded spaces.")
     sec.notes.append(f"free-trim positions at {len(tr.heel)} heels, seen {o.camera.replace('astern', 'from astern')}"
                      f"; frames {o.sweep_size[0]}×{o.sweep_size[1]} px.")
     for k, h in enumerate(tr.heel):

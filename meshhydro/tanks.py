@@ -379,7 +379,7 @@ def level_probe(prep: kernel.Prepared, up: np.ndarray, volume: float, *, capacit
         s = a + (b - a) * volume / capacity
     tol = LEVEL_VOLUME_RTOL * capacity
     prev_side = 0
-    planes = PlaneFamily(prep, n, axes=axes)  # lean cuts: the same numbers as kernel.cut, whole cut at the end
+    planes = PlaneFamily(prep, n, axes=axes)  # lean cuts: kernel.cut's numbers, whole cut at the end
     found = planes.search(volume, capacity, s, a, b, tol, LEVEL_MAX_CUTS)  # the loop below, compiled
     if found is not None:
         return planes, found[0], found[1]

@@ -394,6 +394,9 @@ def test_criteria_one_clause_may_hold_several_limits():
             {"id": "2.2.1", "kind": "area", "from": 0.0, "to": 40.0, "minimum": 0.09},
             {"id": "2.2.1", "kind": "area", "from": 30.0, "to": 40.0, "minimum": 0.03}]
     assert [c.id for c in validate_criteria({"criterion": spec}, C).criteria] == ["2.2.1"] * 3
+    # a minimum and a maximum of one quantity under one id make a band (allowed)
+    band = [{"id": "GM", "kind": "gm", "minimum": 0.15}, {"id": "GM", "kind": "gm", "maximum": 3.0}]
+    assert len(validate_criteria({"criterion": band}, C).criteria) == 2
     # without a text each limit is described by its parameters, so that the rows can be told apart
     from meshhydro.criteria import criteria_from_spec
 

@@ -95,6 +95,28 @@ def _doc():
                     verdict=True, verdict_text="ok", primary="t")
 
 
+def test_csv_quotes_what_a_comment_skipping_reader_would_cut():
+    # RFC 4180 quoting (read back by Python's csv module, a general-purpose reader), plus quotes round a
+    # field holding "#": a reader that skips "#" comment lines must keep "hatch #2" whole
+    import csv
+    import io
+
+    from meshhydro.output import to_csv
+
+    text = to_csv([{"name": "hatch #2", "z": 1.5}, {"name": 'say "a, b"', "z": None}], ["name", "z"])
+    assert text.splitlines()[1] == '"hatch #2",1.5'
+    assert list(csv.reader(io.StringIO(text))) == [["name", "z"], ["hatch #2", "1.5"], ['say "a, b"', ""]]
+
+
+def test_text_tables_keep_number_columns_even_when_empty():
+    # an empty note column (text) is left out of a text table; a number column with no values is not
+    from meshhydro.output import text_table
+
+    rows = [{"a": 1.0, "m": None, "note": ""}, {"a": 2.0, "m": None, "note": ""}]
+    head = text_table(rows, ["a", "m", "note"]).splitlines()[0].split()
+    assert head == ["a", "m"]
+
+
 def test_renderers_write_what_the_document_holds():
     assert render(_doc(), "text") == ("title\nvalues:\nvalue  1.2346 m\nnote: n\n\n   a\n [m]\n1.00\n3.50\n"
                                       "verdict: ok\ncareful\n")

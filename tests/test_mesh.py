@@ -128,3 +128,11 @@ def test_proportions_that_suggest_other_axes_give_a_hint(tmp_path):
     trimesh.Trimesh(v[:, [1, 0, 2]], f[:, ::-1], process=False).export(q)  # file y forward
     _, rep = check_mesh(str(q))
     assert any("longest extent is along y" in w and "--forward" in w for w in rep.warnings)
+
+
+def test_a_flat_mesh_gets_a_report_not_a_crash(tmp_path):
+    # a plate with no breadth in y: no volume and no axes hint, but a health report (no division by zero)
+    p = tmp_path / "plate.obj"
+    p.write_text("v 0 0 0\nv 4 0 0\nv 4 0 1\nv 0 0 1\nf 1 2 3\nf 1 3 4\n")
+    _, rep = check_mesh(str(p))
+    assert "open" in " ".join(rep.warnings) and not any("--up" in w or "--forward" in w for w in rep.warnings)

@@ -334,16 +334,22 @@ def test_fully_submerged_condition(tmp_path):
     assert last["submerged"] and last["awp"] == 0.0 and last["kmt"] == pytest.approx(tm.center_mass[2], abs=1e-9)
 
 
-def test_no_sweep_of_a_flooded_condition(tanks_review):
-    # the sweep floats the intact hull, so a damaged condition gets a note instead of pictures
+def test_sweep_of_a_flooded_condition_uses_its_damaged_curve(tanks_review):
+    # the report's sweep floats the condition as its curve does (lost buoyancy, tank fluid): the trace's GZ
+    # equals the damaged curve's at the same heels, and a note names the flooded spaces
     import dataclasses
 
     rv, _ = tanks_review
     saved = rv.options
     try:
-        rv.options = dataclasses.replace(saved, sweep_heels=np.array([0.0, 10.0]),
+        rv.options = dataclasses.replace(saved, sweep_heels=np.array([0.0, 10.0, 20.0]),
                                          sweep_condition="starboard void flooded")
         sec = review.sweep_section(rv)
     finally:
         rv.options = saved
-    assert sec.figures == [] and "flooded compartments" in sec.notes[0]
+    assert any("flooded (lost buoyancy): starboard void" in n for n in sec.notes)
+    trace = sec.figures[0].data.trace
+    cr = next(cr for cr in rv.runs if cr.inp.condition.name == "starboard void flooded")
+    for k, h in enumerate(trace.heel):
+        j = int(np.argmin(np.abs(cr.curve.heel - h)))
+        assert cr.curve.heel[j] == h and trace.gz[k] == pytest.approx(cr.curve.gz[j], abs=1e-6)

@@ -230,3 +230,20 @@ def test_a_long_sweep_of_large_frames_gets_a_sheet_of_reduced_frames(monkeypatch
     assert sheet.shape == (4 * 15 + 5 * 6, 3 * 20 + 4 * 6, 3)
     assert len(out.frames) == 10 and out.gif is None
     assert np.array_equal(np.asarray(Image.open(io.BytesIO(out.frames[3]))), frames[3])  # frames kept whole
+
+
+@pytest.mark.parametrize("heel", [30.0, 100.0, 150.0])
+def test_frame_label_says_where_the_keel_point_is(heel):
+    # draft T = (vertical depth of K) / (cos φ cos θ) along the heeled hull's z axis (geometry): past 90° it
+    # changes sign while K stays under water, so the label gives K's depth or height there, never a
+    # negative or a misleading positive draft
+    from meshhydro.render import _draft_text
+
+    depth = 1.2
+    t = depth / math.cos(math.radians(heel))
+    text = _draft_text(t, depth)
+    if heel < 90:
+        assert text == f"draft {t:.3f} m"
+    else:
+        assert "under water" in text and "1.200 m" in text and "draft" not in text
+    assert "above the water" in _draft_text(-t, -depth) and "1.200 m" in _draft_text(-t, -depth)

@@ -11,7 +11,7 @@ from .. import limits_analysis
 from ..errors import InputError
 from ..loading import read_case
 from .common import (check_figure, density, is_case, load_mesh, mesh_args, out_args, output, parse_range,
-                     progress, refuse_mesh_options, water_args)
+                     progress, refuse_mesh_options, warn_mesh, water_args)
 from .stability import criteria_set
 
 
@@ -22,6 +22,7 @@ def cmd_kg_limits(args: argparse.Namespace) -> int:
         refuse_mesh_options(args)
         case = read_case(args.source)
         hull, rho, spec, openings = case.load_hull(), density(args, case.density), case.spec, case.openings
+        warn_mesh(hull)
     else:
         hull, rho = load_mesh(args, args.source), density(args)
     cset = criteria_set(args)

@@ -8,7 +8,8 @@ from typing import Any
 
 from ..analysis import check_angles
 from ..errors import InputError
-from .common import check_figure, load_source, parse_range, parse_size, progress, refuse, source_args
+from .common import (check_figure, load_source, parse_range, parse_size, progress, refuse, source_args,
+                     warn_mesh)
 
 
 def cmd_sweep(args: argparse.Namespace) -> int:
@@ -41,7 +42,8 @@ def cmd_sweep(args: argparse.Namespace) -> int:
         print(f"note: {tr.note}")
     for s in sorted({1 if h >= 0 else -1 for h in tr.heel}, reverse=True):
         flood, name = tr.curve.downflooding_angle(s)
-        if flood is not None and name in tr.curve.openings and any(tr.immersed(k) for k in range(len(tr.heel))):
+        on_side = [k for k in range(len(tr.heel)) if tr.heel[k] * s > 0]
+        if flood is not None and name in tr.curve.openings and any(name in tr.immersed(k) for k in on_side):
             print(f"  {name} goes under water at {s * flood:.2f}° (downflooding); later frames say so")
     for s, a in sorted(tr.curve.swamping.items()):
         print(f"  ends at the swamping angle {s * a:.4f}°: the water reaches the open rim there")
@@ -78,6 +80,7 @@ def cmd_compare(args: argparse.Namespace) -> int:
         key = os.path.abspath(case.mesh)
         if key not in cache:
             cache[key] = case.load_hull()
+            warn_mesh(cache[key])
         hull = cache[key]
         cond = resolve_condition(case, hull, name)
         label = f"{os.path.splitext(os.path.basename(path))[0]}: {cond.name}"

@@ -8,12 +8,14 @@ from ..analysis_tanks import tank_tables_analysis
 from ..errors import InputError
 from ..loading import read_case
 from ..tank_case import build_tanks
-from .common import out_args, output
+from .common import out_args, output, warn_mesh
 
 
 def cmd_tanks(args: argparse.Namespace) -> int:
     case = read_case(args.case)
-    tanks = build_tanks(case, case.load_hull())
+    hull = case.load_hull()
+    warn_mesh(hull)
+    tanks = build_tanks(case, hull)
     if not tanks:
         raise InputError(f"{args.case}: the case has no [[tank]]")
     if args.tank:

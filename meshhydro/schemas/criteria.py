@@ -179,13 +179,16 @@ def validate_criteria(data: dict[str, Any], source: str) -> CriteriaSpec:
 
     An id may hold several limits, as a clause of a code does (the three areas of the IS Code's 2.2.1):
     results sharing an id pass together. Two entries under one id that measure the same thing (the same
-    kind and parameters, only the text or limits differing) are refused: one of them is a slip."""
+    kind and parameters, both minima or both maxima, only the text or the value differing) are refused:
+    one of them is a slip. A minimum and a maximum of the same quantity under one id make a band."""
     spec: CriteriaSpec = validate(CriteriaSpec, data, source, CRITERIA_ARRAYS)
     items = []
     seen: dict[tuple[str, str], int] = {}
     for k, c in enumerate(spec.criteria):
         cid = c.id or str(k + 1)
-        what = repr(sorted((f, v) for f, v in c.model_dump().items() if f not in _NOT_MEASURE))
+        # what it measures and which way it bounds it: a minimum and a maximum of one quantity make a band
+        what = repr(sorted((f, v) for f, v in c.model_dump().items() if f not in _NOT_MEASURE)) + \
+            ("max" if getattr(c, "maximum", None) is not None else "min")
         if (cid, what) in seen:
             raise fail(source, ["criterion", k, "id"], f"{cid!r} already names criterion {seen[cid, what] + 1}, "
                        "which measures the same; give this limit its own id or remove one", CRITERIA_ARRAYS)
