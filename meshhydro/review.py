@@ -165,10 +165,11 @@ def open_review(case_path: str, options: ReviewOptions = ReviewOptions(), *, bar
         hull = case.load_hull(progress=getattr(bar, "stage", None))
     finally:
         bar.close()
-    inputs = [{"role": "case file", "path": case_path, "sha256": sha256_file(case_path)},
-              {"role": "hull mesh", "path": case.mesh, "sha256": sha256_file(case.mesh)}]
+    # every input by its full path, so that the list reads the same wherever the report is opened
+    inputs = [{"role": "case file", "path": os.path.abspath(case_path), "sha256": sha256_file(case_path)},
+              {"role": "hull mesh", "path": os.path.abspath(case.mesh), "sha256": sha256_file(case.mesh)}]
     if cfile is not None:
-        inputs.append({"role": "criteria set", "path": cfile, "sha256": sha256_file(cfile)})
+        inputs.append({"role": "criteria set", "path": os.path.abspath(cfile), "sha256": sha256_file(cfile)})
     tanks = build_tanks(case, hull) if case.spec is not None and case.spec.tanks else ()
     return Review(case, hull, options, cset, inputs, bars, tanks=tanks)
 
