@@ -299,6 +299,34 @@ def _merge_extents(a: np.ndarray, b: np.ndarray) -> np.ndarray:
                      min(a[4], b[4]), max(a[5], b[5])])
 
 
+def volume_centroid(sums: list[float], green3: list[float], d: float, tol: float, ol: list[float], ul: list[float],
+                    vl: list[float], org: list[float], p_hull: np.ndarray) -> tuple[float, np.ndarray]:
+    """(volume [m³], centroid (3,) [m, hull frame]) below the plane ``n . x = d`` (centred frame) from a pass's
+    face sums (det, det·(a+b+c), ...) and the first three Green moments of the section (A, Su, Sv about
+    ``o`` on u, v), with the cap cone added; a volume not above ``tol`` is clamped at zero and its centroid
+    is ``p_hull``. Plain floats (lists ``ol, ul, vl`` = o, u, v; ``org`` the centring origin), the same
+    operations in the same order wherever a cut is finished."""
+    a_in, g1, g2 = green3
+    vol = sums[0] / 6.0 + a_in * d / 3.0
+    if not vol > tol:
+        return max(vol, 0.0), p_hull.copy()
+    return vol, np.array([(sm / 24.0 + d * (a_in * oi + g1 * ui + g2 * vi) / 4.0) / vol + ri
+                          for sm, oi, ui, vi, ri in zip(sums[1:4], ol, ul, vl, org)])
+
+
+def waterplane_fields(g: list[float], ol: list[float], ul: list[float], vl: list[float], org: list[float],
+                      p_hull: np.ndarray) -> tuple[float, np.ndarray, float, float, float]:
+    """(area [m²], centroid (3,) [m, hull frame], i_l, i_t, i_uv [m⁴] about it) of a waterplane from its
+    Green moments ``g`` (A, Su, Sv, Suu, Svv, Suv about o on u, v); an empty waterplane has its centroid at
+    ``p_hull``. Plain floats, as :func:`volume_centroid`."""
+    a, su, sv, suu, svv, suv = g
+    if not a > 0.0:
+        return 0.0, p_hull.copy(), 0.0, 0.0, 0.0
+    cu, cv = su / a, sv / a
+    c_wp = np.array([oi + cu * ui + cv * vi + ri for oi, ui, vi, ri in zip(ol, ul, vl, org)])
+    return a, c_wp, suu - a * cu * cu, svv - a * cv * cv, suv - a * cu * cv
+
+
 def _finish(prep: Prepared, p_hull: np.ndarray, n: np.ndarray, d: float, u: np.ndarray, v: np.ndarray,
             o: np.ndarray, sums: np.ndarray, green: np.ndarray, flat: np.ndarray, ext: np.ndarray,
             nseg: int, wseg: np.ndarray | None) -> Cut:
@@ -306,35 +334,21 @@ def _finish(prep: Prepared, p_hull: np.ndarray, n: np.ndarray, d: float, u: np.n
 
     Works on Python floats (the same IEEE operations in the same order as on the arrays; on
     3-vectors numpy's cost per call would outweigh the arithmetic)."""
-    s0, s1, s2, s3 = sums[:4].tolist()
     ol, ul, vl, org = o.tolist(), u.tolist(), v.tolist(), prep.origin.tolist()
+    tol = 1e-12 * max(prep.size, 1.0) ** 3
+    vol, centroid = volume_centroid(sums.tolist(), green[:3].tolist(), d, tol, ol, ul, vl, org, p_hull)
     g = green
-    a_in, g1, g2 = g[:3].tolist()
-    vol = s0 / 6.0 + a_in * d / 3.0
-    mom = [s / 24.0 + d * (a_in * oi + g1 * ui + g2 * vi) / 4.0 for s, oi, ui, vi in zip((s1, s2, s3), ol, ul, vl)]
     if len(flat):  # faces lying in the plane complete the closed waterplane
         g = green + np.array(waterplane_moments(flat, o, u, v))
         if abs(g[0]) <= 1e-13 * max(prep.size, 1e-300) ** 2:
             g = np.zeros(6)
-    a, su, sv, suu, svv, suv = g.tolist()
-    if a > 0.0:
-        cu, cv = su / a, sv / a
-        c_wp = np.array([oi + cu * ui + cv * vi + ri for oi, ui, vi, ri in zip(ol, ul, vl, org)])
-        i_l, i_t, i_uv = suu - a * cu * cu, svv - a * cv * cv, suv - a * cu * cv
-    else:
-        a, c_wp, i_l, i_t, i_uv = 0.0, p_hull.copy(), 0.0, 0.0, 0.0
+    a, c_wp, i_l, i_t, i_uv = waterplane_fields(g.tolist(), ol, ul, vl, org, p_hull)
     if nseg:
         e = ext.tolist()
         lwl, bwl = e[1] - e[0], e[3] - e[2]
         wx = np.array([e[4] + org[0], e[5] + org[0]])
     else:
         lwl, bwl, wx = 0.0, 0.0, np.array([p_hull[0], p_hull[0]])
-    tol = 1e-12 * max(prep.size, 1.0) ** 3
-    if vol > tol:
-        centroid = np.array([m / vol + ri for m, ri in zip(mom, org)])
-    else:
-        vol = max(vol, 0.0)
-        centroid = p_hull.copy()
     return Cut(
         point=p_hull.copy(), normal=n, volume=float(vol), centroid=centroid,
         wetted_area=float(sums[4]), waterplane_area=float(a), waterplane_centroid=c_wp,

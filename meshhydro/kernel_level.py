@@ -152,24 +152,11 @@ class PlaneFamily:
         if probe._cut is not None:
             return probe._cut
         p_hull, d, o, r = probe._pass
-        u, v, org = self.u.tolist(), self.v.tolist(), self.prep.origin.tolist()
-        oo = o.tolist()
+        ol, ul, vl, org = o.tolist(), self.u.tolist(), self.v.tolist(), self.prep.origin.tolist()
         sums, green = (r.sums, r.green) if isinstance(r, kernel_compiled.PassResult) else r
-        _, s1, s2, s3, _ = sums.tolist()
-        a, su, sv, suu, svv, suv = green.tolist()
-        vol = probe.volume
-        # per element, the same operations in the same order as kernel._finish's array expressions
-        if vol > self._tol:
-            centroid = np.array([(sm / 24.0 + d * (a * oi + su * ui + sv * vi) / 4.0) / vol + ci
-                                 for sm, oi, ui, vi, ci in zip((s1, s2, s3), oo, u, v, org)])
-        else:
-            centroid = p_hull.copy()
-        if a > 0.0:
-            cu, cv = su / a, sv / a
-            c_wp = np.array([oi + cu * ui + cv * vi + ci for oi, ui, vi, ci in zip(oo, u, v, org)])
-            i_l, i_t, i_uv = suu - a * cu * cu, svv - a * cv * cv, suv - a * cu * cv
-        else:
-            a, c_wp, i_l, i_t, i_uv = 0.0, p_hull.copy(), 0.0, 0.0, 0.0
+        g = green.tolist()
+        vol, centroid = kernel.volume_centroid(sums.tolist(), g[:3], d, self._tol, ol, ul, vl, org, p_hull)
+        a, c_wp, i_l, i_t, i_uv = kernel.waterplane_fields(g, ol, ul, vl, org, p_hull)
         return Level(vol, centroid, a, c_wp, self.u, self.v, i_t, i_l, i_uv)
 
     def cut(self, probe: Probe) -> kernel.Cut:
