@@ -11,14 +11,18 @@ import numpy as np
 from .jit import AVAILABLE, njit  # noqa: F401 - AVAILABLE is part of this module's interface
 
 
-@njit(cache=True, nogil=True)
-def _spread(x):  # pragma: no cover - compiled
+def spread_bits(x):
+    """The 10 low bits of ``x`` (uint64, a scalar or an array) spread to every third bit, for Morton
+    keys; plain numpy here, compiled as ``_spread`` for :func:`morton_keys`."""
     x = x & np.uint64(0x3FF)
     x = (x | (x << np.uint64(16))) & np.uint64(0x30000FF)
     x = (x | (x << np.uint64(8))) & np.uint64(0x300F00F)
     x = (x | (x << np.uint64(4))) & np.uint64(0x30C30C3)
     x = (x | (x << np.uint64(2))) & np.uint64(0x9249249)
     return x
+
+
+_spread = njit(cache=True, nogil=True)(spread_bits)
 
 
 @njit(cache=True, nogil=True)

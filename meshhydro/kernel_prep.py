@@ -81,15 +81,7 @@ def _morton(points: np.ndarray) -> np.ndarray:
     lo = points.min(axis=0)
     span = np.maximum(points.max(axis=0) - lo, 1e-300)
     q = np.clip(((points - lo) / span * 1023.0).astype(np.uint64), 0, 1023)
-
-    def spread(x: np.ndarray) -> np.ndarray:
-        x = x & np.uint64(0x3FF)
-        x = (x | (x << np.uint64(16))) & np.uint64(0x30000FF)
-        x = (x | (x << np.uint64(8))) & np.uint64(0x300F00F)
-        x = (x | (x << np.uint64(4))) & np.uint64(0x30C30C3)
-        x = (x | (x << np.uint64(2))) & np.uint64(0x9249249)
-        return x
-
+    spread = kernel_build.spread_bits
     return spread(q[:, 0]) | (spread(q[:, 1]) << np.uint64(1)) | (spread(q[:, 2]) << np.uint64(2))
 
 
