@@ -270,7 +270,7 @@ def conditions_section(rv: Review) -> Section:
 def sweep_section(rv: Review) -> Section | None:
     """The heel sweep of one condition: frames, the animation, the B trace and metacentre locus."""
     from .figure_data import largest_section_outline, section_data
-    from .sweep import heel_trace
+    from .sweep import condition_trace
 
     o = rv.options
     if o.sweep_heels is None:
@@ -280,9 +280,8 @@ def sweep_section(rv: Review) -> Section | None:
     c = c if c is not None else resolve_condition(rv.case, rv.hull, name, tanks=rv.tanks)
     bar = rv.bars(len(o.sweep_heels), f"sweep, {c.name}")
     try:  # the same load and flooding as the condition's curve and the sweep command
-        tr = heel_trace(rv.hull, c.displacement, c.cog, o.sweep_heels, density=rv.case.density, fsm=c.fsm,
-                        label=c.name, progress=bar, openings=rv.case.openings,
-                        load=c.load() if c.tanks else None, compartments=c.flooded)
+        tr = condition_trace(rv.hull, c, o.sweep_heels, density=rv.case.density, label=c.name, progress=bar,
+                             openings=rv.case.openings)
     finally:
         bar.close()
     sec = Section("sweep", f"Heel sweep: {c.name}")
@@ -298,7 +297,7 @@ def sweep_section(rv: Review) -> Section | None:
                                   SweepFigure(rv.hull, tr, o.sweep_size, o.camera, "frame", k, o.smooth_edges)))
     sec.figures.append(Figure("animation", f"{c.name}: heel sweep animation", "sweep_frame",
                               SweepFigure(rv.hull, tr, o.sweep_size, o.camera, "animation",
-                                                          smooth=o.smooth_edges)))
+                                          smooth=o.smooth_edges)))
     sec.figures.append(Figure("section", f"{c.name}: trace of B and locus of M (seen from astern)", "section_plot",
                               section_data(tr, rv.vessel, outline=largest_section_outline(rv.hull))))
     rows = [{"heel": float(tr.heel[k]), "gz": float(tr.gz[k]), "b_y": float(tr.cob[k][1]),

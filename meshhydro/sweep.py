@@ -119,6 +119,15 @@ def heel_trace(hull: Hull, displacement: float, cog: Sequence[float], heels: Seq
                  label)
 
 
+def condition_trace(hull: Hull, cond: Any, heels: Sequence[float], *, density: float, label: str = "",
+                    progress: Any = None, submerged_depth: float = 0.0, openings: Sequence[Any] = ()) -> Trace:
+    """:func:`heel_trace` of a loading condition (:class:`meshhydro.loading.Condition`) as its own curve is
+    solved: its tank fluid by the condition's method and its flooded spaces (lost buoyancy)."""
+    return heel_trace(hull, cond.displacement, cond.cog, heels, density=density, fsm=cond.fsm, label=label,
+                      progress=progress, submerged_depth=submerged_depth,
+                      load=cond.load() if cond.tanks else None, compartments=cond.flooded, openings=openings)
+
+
 def _check_target(out: str) -> None:
     """Refuse an output path that is a file, or a folder holding anything but an earlier sweep."""
     if os.path.exists(out):

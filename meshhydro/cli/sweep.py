@@ -13,7 +13,7 @@ from .common import (check_figure, load_source, parse_range, parse_size, progres
 
 
 def cmd_sweep(args: argparse.Namespace) -> int:
-    from ..sweep import heel_trace, write_sweep
+    from ..sweep import condition_trace, write_sweep
 
     size = parse_size(args.size)
     heels = check_angles(parse_range(args.heels, "--heels"), -180.0, 180.0, what="--heels")
@@ -22,9 +22,8 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     src = load_source(args)
     c = src.condition
     bar = progress(args, len(heels), "solving")
-    tr = heel_trace(src.hull, c.displacement, c.cog, heels, density=src.density, fsm=c.fsm, label=src.label,
-                    progress=bar, submerged_depth=src.depth_option(), load=c.load() if c.tanks else None,
-                    compartments=c.flooded, openings=src.openings)
+    tr = condition_trace(src.hull, c, heels, density=src.density, label=src.label, progress=bar,
+                         submerged_depth=src.depth_option(), openings=src.openings)
     bar.close()
     n_frames = len(tr.heel) if args.view in ("3d", "both") else 0
     bar = progress(args, max(n_frames, 1), "rendering")
@@ -64,7 +63,7 @@ def cmd_compare(args: argparse.Namespace) -> int:
     from ..tank_case import resolve_condition
     from ..figure_data import compare_data
     from ..figures import compare_overlay
-    from ..sweep import heel_trace
+    from ..sweep import condition_trace
 
     if len(args.sources) < 2:
         raise InputError("compare needs two or more case files (CASE.toml or CASE.toml@condition)")
@@ -84,9 +83,7 @@ def cmd_compare(args: argparse.Namespace) -> int:
         hull = cache[key]
         cond = resolve_condition(case, hull, name)
         label = f"{os.path.splitext(os.path.basename(path))[0]}: {cond.name}"
-        traces.append(heel_trace(hull, cond.displacement, cond.cog, heels, density=case.density, fsm=cond.fsm,
-                                 label=label, load=cond.load() if cond.tanks else None,
-                                 compartments=cond.flooded))
+        traces.append(condition_trace(hull, cond, heels, density=case.density, label=label))
         hulls.append(hull)
         labels.append(label)
     compare_overlay(compare_data(traces, labels, f"Heel sweeps compared: {len(traces)} cases, "
