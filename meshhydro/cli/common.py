@@ -163,6 +163,12 @@ def out_args(p: argparse.ArgumentParser, formats: Sequence[str] = ("text", "csv"
     p.add_argument("--out", help="write the output to this file (atomically) instead of standard output")
 
 
+def set_arg(p: argparse.ArgumentParser) -> None:
+    """The criteria set option, the same for every command that checks criteria."""
+    p.add_argument("--set", help="imo2008, imo2008-weather (built-in) or a criteria TOML file "
+                                 "(default the case's [criteria] set, else imo2008)")
+
+
 def water_args(p: argparse.ArgumentParser) -> None:
     p.add_argument("--density", type=float, help="water density [t/m³] (default sea water 1.025)")
     p.add_argument("--water", choices=("sea", "fresh"), help="sea (1.025 t/m³) or fresh (1.000 t/m³) water")

@@ -11,7 +11,7 @@ from .. import limits_analysis
 from ..errors import InputError
 from ..loading import read_case
 from .common import (check_figure, density, is_case, load_mesh, mesh_args, out_args, output, parse_range,
-                     progress, refuse_mesh_options, warn_mesh, water_args)
+                     progress, refuse_mesh_options, set_arg, warn_mesh, water_args)
 from .stability import criteria_set
 
 
@@ -48,8 +48,7 @@ def register(sub: argparse._SubParsersAction) -> None:
     k = sub.add_parser("kg-limits", help="largest KG meeting a criteria set, per displacement, and what governs")
     k.add_argument("source", help="case file (.toml) or mesh file")
     k.add_argument("--displacements", required=True, help="START:STOP:STEP [t] or a list")
-    k.add_argument("--set", help="imo2008, imo2008-weather or a criteria TOML file "
-                                 "(default the case's [criteria] set, else imo2008)")
+    set_arg(k)
     k.add_argument("--kg-range", help="LOW:HIGH [m] searched for the limit (default 0 to the hull's depth)")
     k.add_argument("--steps", type=int, default=40, help="grid steps over the KG range that bracket a limit "
                                                          "(default 40)")

@@ -6,7 +6,7 @@ import os
 import sys
 
 from ..errors import InputError
-from .common import parse_range, parse_size, progress
+from .common import parse_range, parse_size, progress, set_arg
 
 
 def _options(args: argparse.Namespace):
@@ -91,7 +91,7 @@ def register(sub: argparse._SubParsersAction) -> None:
                                       "(exit 1 when a condition fails its criteria)")
     r.add_argument("case", help="case file (.toml)")
     r.add_argument("--out", required=True, help="HTML file to write (atomically)")
-    r.add_argument("--set", help="criteria: imo2008 or a criteria TOML file (default: the case's, else imo2008)")
+    set_arg(r)
     r.add_argument("--heels", default="0:180:1", help="GZ-curve heels START:STOP:STEP, 0 to 180 [deg] "
                                                      "(default 0:180:1)")
     r.add_argument("--direction", choices=("auto", "both", "starboard", "port"), default="auto",

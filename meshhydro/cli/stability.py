@@ -24,6 +24,7 @@ from .common import (
     output,
     parse_range,
     progress,
+    set_arg,
     source_args,
     water_args,
 )
@@ -154,8 +155,7 @@ def register(sub: argparse._SubParsersAction) -> None:
 
     k = sub.add_parser("criteria", help="check a condition against a criteria set (exit 1 when not met)")
     source_args(k)
-    k.add_argument("--set", help="imo2008, imo2008-weather (built-in) or a criteria TOML file "
-                                 "(default the case's [criteria] set, else imo2008)")
+    set_arg(k)
     _curve_opts(k, "draw the GZ curve with the criteria's limits to this file (.png, .svg or .pdf); with heeling "
                    "arms or the weather criterion, their levers go to FILE-levers.SUFFIX as well")
     out_args(k)
