@@ -14,6 +14,7 @@ from hypothesis import assume, given, settings, strategies as st
 
 from meshhydro import InputError, load_hull
 from meshhydro.forms import box, wigley, wigley_exact
+from meshhydro.hull_shapes import concat
 from meshhydro.loft import loft
 from meshhydro.offsets import MultiOffsets, Offsets, fmt, parse_offsets, read_offsets
 from meshhydro.sections import (
@@ -34,21 +35,12 @@ def _shift(vf, dy=0.0, dx=0.0):
     return v + np.array([dx, dy, 0.0]), f
 
 
-def _join(*parts):
-    vs, fs, k = [], [], 0
-    for v, f in parts:
-        vs.append(v)
-        fs.append(f + k)
-        k += len(v)
-    return np.concatenate(vs), np.concatenate(fs)
-
-
 L, B, D, S = 10.0, 1.0, 2.0, 2.0  # box demihulls 10 x 1 x 2 m, centrelines at y = ±2 m
 
 
 @pytest.fixture(scope="module")
 def box_cat():
-    return load_hull(tm(*_join(_shift(box(L, B, D), -S), _shift(box(L, B, D), S))))
+    return load_hull(tm(*concat([_shift(box(L, B, D), -S), _shift(box(L, B, D), S)])))
 
 
 def test_box_catamaran_per_body_and_total_match_the_closed_form(box_cat):
@@ -99,7 +91,7 @@ def test_sectional_areas_of_a_catamaran_are_the_two_hulls_only(box_cat):
 def test_two_wigley_hulls_off_the_centreline_match_the_closed_form():
     Lw, Bw, T, s = 10.0, 1.0, 0.625, 1.5
     demi = wigley(Lw, Bw, T, stations=160, waterlines=64)
-    hull = load_hull(tm(*_join(_shift(demi, -s), _shift(demi, s))), x_ref=0.0)
+    hull = load_hull(tm(*concat([_shift(demi, -s), _shift(demi, s)])), x_ref=0.0)
     ex = wigley_exact(Lw, Bw, T)
     # the mesh itself: exact polyhedron, O(h²) from the smooth form
     assert hull.hydrostatics(T).volume == pytest.approx(2 * ex["volume"], rel=2e-3)
@@ -146,7 +138,7 @@ def test_asymmetric_float_is_refused_with_the_reason():
     # a proa float with a flat inboard side: trapezium section (y, z) (0, 0) (0.4, 0) (0.6, 0.5) (0, 0.5)
     pts = np.array([(x, y, z) for x in (0.0, 4.0) for (y, z) in ((0, 0), (0.4, 0), (0.6, 0.5), (0, 0.5))], float)
     flt = trimesh.convex.convex_hull(pts)
-    v, f = _join(box(6.0, 1.0, 1.0), (np.asarray(flt.vertices) + [1.0, 2.0, 0.0], np.asarray(flt.faces)))
+    v, f = concat([box(6.0, 1.0, 1.0), (np.asarray(flt.vertices) + [1.0, 2.0, 0.0], np.asarray(flt.faces))])
     hull = load_hull(tm(v, f))
     with pytest.raises(InputError, match="body 1 is not symmetric about its own centreline"):
         offsets_from_mesh(hull, 4, 4)
