@@ -299,6 +299,13 @@ def _merge_extents(a: np.ndarray, b: np.ndarray) -> np.ndarray:
                      min(a[4], b[4]), max(a[5], b[5])])
 
 
+def cap_volume(det_sum: float, area: float, d: float, tol: float) -> float:
+    """Volume [m³] below the plane ``n . x = d`` (centred frame): the submerged faces' determinant sum over 6
+    plus the cap cone of the section of ``area`` [m²]; clamped at zero when not above ``tol``."""
+    vol = det_sum / 6.0 + area * d / 3.0
+    return vol if vol > tol else max(vol, 0.0)
+
+
 def volume_centroid(sums: list[float], green3: list[float], d: float, tol: float, ol: list[float], ul: list[float],
                     vl: list[float], org: list[float], p_hull: np.ndarray) -> tuple[float, np.ndarray]:
     """(volume [m³], centroid (3,) [m, hull frame]) below the plane ``n . x = d`` (centred frame) from a pass's
@@ -307,9 +314,9 @@ def volume_centroid(sums: list[float], green3: list[float], d: float, tol: float
     is ``p_hull``. Plain floats (lists ``ol, ul, vl`` = o, u, v; ``org`` the centring origin), the same
     operations in the same order wherever a cut is finished."""
     a_in, g1, g2 = green3
-    vol = sums[0] / 6.0 + a_in * d / 3.0
+    vol = cap_volume(sums[0], a_in, d, tol)
     if not vol > tol:
-        return max(vol, 0.0), p_hull.copy()
+        return vol, p_hull.copy()
     return vol, np.array([(sm / 24.0 + d * (a_in * oi + g1 * ui + g2 * vi) / 4.0) / vol + ri
                           for sm, oi, ui, vi, ri in zip(sums[1:4], ol, ul, vl, org)])
 

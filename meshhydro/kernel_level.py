@@ -114,12 +114,14 @@ class PlaneFamily:
         if len(flat):  # faces lie in the plane: finish the whole cut now
             c = kernel.finish_compiled(prep, p_hull, n, d, self.u, self.v, o, r, False)
             return Probe(c.volume, c.waterplane_area, None, c)
-        # as in kernel._finish without faces in the plane
+        return self._probe(sums, green, (p_hull, d, o, r))
+
+    def _probe(self, sums: np.ndarray, green: np.ndarray, pass_: tuple) -> Probe:
+        """The probe of a compiled pass's sums and moments, its volume formed as in kernel._finish (a plane
+        without faces lying in it); ``pass_`` (point, d, o, the pass) finishes its fields on demand."""
         a_in = float(green[0])
-        vol = float(sums[0]) / 6.0 + a_in * d / 3.0
-        if not vol > self._tol:
-            vol = max(vol, 0.0)
-        return Probe(float(vol), a_in if a_in > 0.0 else 0.0, (p_hull, d, o, r), None)
+        vol = kernel.cap_volume(float(sums[0]), a_in, pass_[1], self._tol)
+        return Probe(float(vol), a_in if a_in > 0.0 else 0.0, pass_, None)
 
     def search(self, volume: float, capacity: float, s: float, a: float, b: float, tol: float,
                max_cuts: int) -> tuple[Probe, int] | None:
@@ -137,14 +139,9 @@ class PlaneFamily:
             self._tol, int(max_cuts))
         if k <= 0:
             return None
-        a_in = float(green[0])
-        vol = float(sums[0]) / 6.0 + a_in * d / 3.0
-        if not vol > self._tol:
-            vol = max(vol, 0.0)
         p_hull = prep.origin + s * self.given
         # the loop keeps the sums and moments of its last plane, not its extents: cut() sweeps it again
-        return Probe(float(vol), a_in if a_in > 0.0 else 0.0, (p_hull, d, d * self.normal, (sums, green)), None), \
-            int(k)
+        return self._probe(sums, green, (p_hull, d, d * self.normal, (sums, green))), int(k)
 
     def level(self, probe: Probe) -> "Level | kernel.Cut":
         """The fluid fields of a probe (a :class:`Level`, or the whole cut where it is at hand),
